@@ -1,0 +1,604 @@
+//! The reusable solver: caches the Gram matrix of the cells outside their bands and the factor of the
+//! free block, so re-solves after target, weight or rate edits are warm.
+//!
+//! Method: finite Newton for band targets (Mangasarian 2002; Keerthi & DeCoste 2005) — classify cells as
+//! below / inside / above their band at the current x, solve that box-constrained least squares exactly on
+//! the Gram matrix (Bro & De Jong 1997 style active set, see [`crate::boxqp`]), exact line search on the true
+//! piecewise-quadratic objective, repeat. A time budget adds one multiplier ν found by bracketed
+//! Illinois regula falsi on Σx(ν), which is non-increasing and piecewise linear.
+
+use crate::boxqp::{self, Quad, Vars};
+use crate::error::{Field, InputError};
+use crate::kkt;
+use crate::problem::{Rates, Spec, band_distance, check_rate, objective};
+use crate::solution::{Iterations, Solution, Status};
+use nalgebra::DMatrix;
+
+/// Relative KKT tolerance the inner solves aim for.
+const KKT_TOL: f64 = 1e-10;
+/// Finite-Newton passes before giving up.
+const MAX_NEWTON: usize = 200;
+/// Budget-multiplier evaluations before giving up.
+const MAX_BUDGET: usize = 200;
+/// Low-rank Gram updates allowed before a full rebuild refreshes rounding.
+const REBUILD_AFTER: usize = 4096;
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Class {
+    Inside,
+    Below,
+    Above,
+    Point,
+}
+
+fn classify(z: f64, lo: f64, hi: f64) -> Class {
+    if lo == hi {
+        Class::Point
+    } else if z < lo {
+        Class::Below
+    } else if z > hi {
+        Class::Above
+    } else {
+        Class::Inside
+    }
+}
+
+/// (Gram weight, b weight) a cell contributes in a class.
+fn contribution(class: Class, w: f64, lo: f64, hi: f64) -> (f64, f64) {
+    match class {
+        Class::Inside => (0.0, 0.0),
+        Class::Below | Class::Point => (w, w * lo),
+        Class::Above => (w, w * hi),
+    }
+}
+
+/// A cell whose contribution to the Gram (`dg`) and to b (`db`) changes.
+struct Change {
+    cell: usize,
+    dg: f64,
+    db: f64,
+}
+
+/// Dwell solver for one rate matrix, reusable across specifications.
+///
+/// ```
+/// use traycast_solver::{DwellSolver, Rates, Spec};
+/// // Two configurations heating two cells; cell 0 must rise 30 K, cell 1 at least 10 K.
+/// let rates = Rates::from_row_major(2, 2, &[0.5, 0.1, 0.1, 0.4]).unwrap();
+/// let mut solver = DwellSolver::new(rates);
+/// let spec = Spec::band(vec![30.0, 10.0], vec![30.0, f64::INFINITY], 2);
+/// let sol = solver.solve(&spec).unwrap();
+/// assert!(sol.band_distance.iter().all(|d| d.abs() < 1e-9));
+/// ```
+#[derive(Clone, Debug)]
+pub struct DwellSolver {
+    rates: Rates,
+    spec: Option<Spec>,
+    class: Vec<Class>,
+    gram: DMatrix<f64>,
+    b: Vec<f64>,
+    colnorm2: Vec<f64>,
+    z: Vec<f64>,
+    vars: Vars,
+    nu: f64,
+    updates_since_rebuild: usize,
+    row: Vec<f64>,
+}
+
+impl DwellSolver {
+    /// A solver for these rates. Nothing is computed until the first solve.
+    pub fn new(rates: Rates) -> Self {
+        let (m, n) = (rates.cells(), rates.configs());
+        DwellSolver {
+            rates,
+            spec: None,
+            class: vec![Class::Inside; m],
+            gram: DMatrix::zeros(n, n),
+            b: vec![0.0; n],
+            colnorm2: vec![0.0; n],
+            z: vec![0.0; m],
+            vars: Vars::new(n),
+            nu: 0.0,
+            updates_since_rebuild: 0,
+            row: vec![0.0; n],
+        }
+    }
+
+    /// The rates this solver works on.
+    pub fn rates(&self) -> &Rates {
+        &self.rates
+    }
+
+    /// Forgets every cached quantity and warm-start state (the next solve is fully cold).
+    pub fn reset(&mut self) {
+        *self = DwellSolver::new(std::mem::replace(
+            &mut self.rates,
+            Rates::from_row_major(0, 0, &[]).expect("empty rates are valid"),
+        ));
+    }
+
+    /// Replaces the rates of some cells (`rows` holds `cells.len()` rows of `configs` values, row-major).
+    /// Cached quantities are corrected by low-rank updates instead of being rebuilt.
+    pub fn update_rates(&mut self, cells: &[usize], rows: &[f64]) -> Result<(), InputError> {
+        let (m, n) = (self.rates.cells(), self.rates.configs());
+        if rows.len() != cells.len() * n {
+            return Err(InputError::Dimension {
+                field: Field::Rates,
+                expected: cells.len() * n,
+                found: rows.len(),
+            });
+        }
+        for (k, &cell) in cells.iter().enumerate() {
+            if cell >= m {
+                return Err(InputError::OutOfRange {
+                    field: Field::CellIndex,
+                    index: cell,
+                    len: m,
+                });
+            }
+            for j in 0..n {
+                check_rate(cell, j, rows[k * n + j])?;
+            }
+        }
+        let Some(spec) = self.spec.take() else {
+            for (k, &cell) in cells.iter().enumerate() {
+                self.rates.replace_row(cell, &rows[k * n..(k + 1) * n]);
+            }
+            return Ok(());
+        };
+        // Remove the old rows' contributions, swap the rows in, add the new ones.
+        let removal: Vec<Change> = cells.iter().map(|&c| self.negated(&spec, c)).collect();
+        self.apply_changes(&removal, &spec);
+        for (k, &cell) in cells.iter().enumerate() {
+            self.rates.replace_row(cell, &rows[k * n..(k + 1) * n]);
+            let a = self.rates.matrix();
+            self.z[cell] = (0..n).map(|j| a[(cell, j)] * self.vars.x[j]).sum();
+            self.class[cell] = classify(self.z[cell], spec.lo[cell], spec.hi[cell]);
+        }
+        let addition: Vec<Change> = cells
+            .iter()
+            .map(|&c| {
+                let (dg, db) = contribution(self.class[c], spec.weights[c], spec.lo[c], spec.hi[c]);
+                Change { cell: c, dg, db }
+            })
+            .collect();
+        self.apply_changes(&addition, &spec);
+        for &c in cells {
+            let w = spec.weights[c];
+            let a = self.rates.matrix();
+            for j in 0..n {
+                // colnorm2 was reduced by the removal pass; add the new row back.
+                self.colnorm2[j] += w * a[(c, j)] * a[(c, j)];
+            }
+        }
+        self.vars.factor_valid = false;
+        self.spec = Some(spec);
+        Ok(())
+    }
+
+    fn negated(&mut self, spec: &Spec, c: usize) -> Change {
+        let (dg, db) = contribution(self.class[c], spec.weights[c], spec.lo[c], spec.hi[c]);
+        let w = spec.weights[c];
+        let a = self.rates.matrix();
+        for j in 0..self.rates.configs() {
+            self.colnorm2[j] -= w * a[(c, j)] * a[(c, j)];
+        }
+        Change {
+            cell: c,
+            dg: -dg,
+            db: -db,
+        }
+    }
+
+    /// Solves for `spec`, warm-starting from the previous solve where possible.
+    pub fn solve(&mut self, spec: &Spec) -> Result<Solution, InputError> {
+        let (m, n) = (self.rates.cells(), self.rates.configs());
+        spec.validate(m, n)?;
+        self.sync_spec(spec);
+        let budget = spec.budget_or_inf();
+        let upper: Vec<f64> = spec.upper.iter().map(|&u| u.min(budget)).collect();
+        self.make_feasible(spec, &upper);
+
+        let mut it = Iterations::default();
+        let mut converged = self.newton(spec, &upper, 0.0, &mut it);
+        let mut status = Status::Optimal;
+        let total: f64 = self.vars.x.iter().sum();
+        self.nu = 0.0;
+        if total > budget * (1.0 + 1e-12) {
+            converged &= self.budget_search(spec, &upper, budget, &mut it);
+        }
+        // Σx at T means the budget binds (also when the cap min(u, T) did the work, as with one configuration).
+        if budget.is_finite() && self.vars.x.iter().sum::<f64>() >= budget * (1.0 - 1e-12) {
+            status = Status::BudgetBinding;
+        }
+        if !converged {
+            status = Status::IterationLimit;
+        }
+        Ok(self.solution(spec, status, it))
+    }
+
+    /// Brings the cached classification, Gram matrix and b in line with `spec` by diffing against the last one.
+    fn sync_spec(&mut self, spec: &Spec) {
+        let Some(old) = self.spec.take() else {
+            self.rebuild(spec);
+            self.spec = Some(spec.clone());
+            return;
+        };
+        let a = self.rates.matrix();
+        let n = self.rates.configs();
+        let mut changes = Vec::new();
+        for i in 0..self.rates.cells() {
+            let same = old.lo[i] == spec.lo[i] && old.hi[i] == spec.hi[i] && old.weights[i] == spec.weights[i];
+            if same {
+                continue;
+            }
+            let before = contribution(self.class[i], old.weights[i], old.lo[i], old.hi[i]);
+            let class = classify(self.z[i], spec.lo[i], spec.hi[i]);
+            let after = contribution(class, spec.weights[i], spec.lo[i], spec.hi[i]);
+            self.class[i] = class;
+            let dw = spec.weights[i] - old.weights[i];
+            if dw != 0.0 {
+                for j in 0..n {
+                    self.colnorm2[j] += dw * a[(i, j)] * a[(i, j)];
+                }
+            }
+            changes.push(Change {
+                cell: i,
+                dg: after.0 - before.0,
+                db: after.1 - before.1,
+            });
+        }
+        self.apply_changes(&changes, spec);
+        self.spec = Some(spec.clone());
+    }
+
+    /// Builds the Gram matrix and b of the active cells from scratch.
+    fn rebuild(&mut self, spec: &Spec) {
+        let (m, n) = (self.rates.cells(), self.rates.configs());
+        let a = self.rates.matrix();
+        for i in 0..m {
+            self.class[i] = classify(self.z[i], spec.lo[i], spec.hi[i]);
+        }
+        let active: Vec<usize> = (0..m).filter(|&i| self.class[i] != Class::Inside).collect();
+        let mut scaled = DMatrix::zeros(active.len(), n);
+        self.b.iter_mut().for_each(|v| *v = 0.0);
+        for j in 0..n {
+            let col = a.column(j);
+            let mut bj = 0.0;
+            for (r, &i) in active.iter().enumerate() {
+                let (gw, bw) = contribution(self.class[i], spec.weights[i], spec.lo[i], spec.hi[i]);
+                scaled[(r, j)] = gw.sqrt() * col[i];
+                bj += bw * col[i];
+            }
+            self.b[j] = bj;
+            self.colnorm2[j] = col
+                .iter()
+                .zip(&spec.weights)
+                .map(|(v, w)| w * v * v)
+                .sum();
+        }
+        self.gram = scaled.tr_mul(&scaled);
+        self.updates_since_rebuild = 0;
+        self.vars.factor_valid = false;
+    }
+
+    /// Applies contribution changes as one low-rank update, or rebuilds when that is cheaper or due.
+    fn apply_changes(&mut self, changes: &[Change], spec: &Spec) {
+        if changes.is_empty() {
+            return;
+        }
+        let n = self.rates.configs();
+        let a = self.rates.matrix();
+        for ch in changes {
+            if ch.db != 0.0 {
+                for j in 0..n {
+                    self.b[j] += ch.db * a[(ch.cell, j)];
+                }
+            }
+        }
+        let grams: Vec<&Change> = changes.iter().filter(|c| c.dg != 0.0).collect();
+        if grams.is_empty() {
+            return;
+        }
+        self.vars.factor_valid = false;
+        self.updates_since_rebuild += grams.len();
+        if self.updates_since_rebuild > REBUILD_AFTER || grams.len() * 4 > self.rates.cells() {
+            self.rebuild(spec);
+            return;
+        }
+        if grams.len() == 1 {
+            let c = grams[0];
+            for j in 0..n {
+                self.row[j] = a[(c.cell, j)];
+            }
+            let row = nalgebra::DVectorView::from_slice(&self.row, n);
+            self.gram.ger(c.dg, &row, &row, 1.0);
+            return;
+        }
+        let rows = DMatrix::from_fn(grams.len(), n, |r, j| a[(grams[r].cell, j)]);
+        let weighted = DMatrix::from_fn(grams.len(), n, |r, j| grams[r].dg * rows[(r, j)]);
+        self.gram.gemm_tr(1.0, &rows, &weighted, 1.0);
+    }
+
+    /// Clips the warm start into the new bounds and budget so the active-set method starts feasible.
+    fn make_feasible(&mut self, spec: &Spec, upper: &[f64]) {
+        let before = self.vars.x.clone();
+        for (x, &u) in self.vars.x.iter_mut().zip(upper) {
+            *x = x.min(u);
+        }
+        let total: f64 = self.vars.x.iter().sum();
+        let budget = spec.budget_or_inf();
+        if total > budget {
+            let s = budget / total;
+            self.vars.x.iter_mut().for_each(|x| *x *= s);
+        }
+        self.vars.resnap(upper);
+        if self.vars.x != before {
+            let x = self.vars.x.clone();
+            self.move_to(spec, &x);
+        }
+    }
+
+    /// Sets x, recomputes the prediction and re-classifies every cell.
+    fn move_to(&mut self, spec: &Spec, x: &[f64]) {
+        self.vars.x.copy_from_slice(x);
+        self.z = self.rates.apply(x);
+        self.reclassify(spec);
+    }
+
+    fn reclassify(&mut self, spec: &Spec) {
+        let mut changes = Vec::new();
+        for i in 0..self.rates.cells() {
+            let class = classify(self.z[i], spec.lo[i], spec.hi[i]);
+            if class != self.class[i] {
+                let before = contribution(self.class[i], spec.weights[i], spec.lo[i], spec.hi[i]);
+                let after = contribution(class, spec.weights[i], spec.lo[i], spec.hi[i]);
+                self.class[i] = class;
+                changes.push(Change {
+                    cell: i,
+                    dg: after.0 - before.0,
+                    db: after.1 - before.1,
+                });
+            }
+        }
+        self.apply_changes(&changes, spec);
+    }
+
+    fn linear_term(&self, spec: &Spec, nu: f64) -> Vec<f64> {
+        let shift = 0.5 * spec.time_penalty + nu;
+        self.b.iter().map(|b| b - shift).collect()
+    }
+
+    /// Finite Newton at a fixed budget multiplier ν. Returns false on an iteration limit.
+    fn newton(&mut self, spec: &Spec, upper: &[f64], nu: f64, it: &mut Iterations) -> bool {
+        let n = self.rates.configs();
+        let max_active = 50 * n + 200;
+        loop {
+            let c = self.linear_term(spec, nu);
+            let tol: Vec<f64> = kkt::gradient_scales(&self.colnorm2, spec, &self.vars.x)
+                .into_iter()
+                .map(|s| s * KKT_TOL)
+                .collect();
+            let quad = Quad {
+                gram: &self.gram,
+                ridge: spec.ridge,
+                c: &c,
+                upper,
+                tol: &tol,
+            };
+            let optimal = (0..n).all(|j| quad.violation(&self.vars.x, self.vars.state[j], j) <= 1.0);
+            if optimal {
+                return true;
+            }
+            if it.newton >= MAX_NEWTON {
+                return false;
+            }
+            it.newton += 1;
+            let x_old = self.vars.x.clone();
+            let mut active = it.active_set;
+            let done = boxqp::solve(&quad, &mut self.vars, &mut active, it.active_set + max_active);
+            it.active_set = active;
+            let d: Vec<f64> = self.vars.x.iter().zip(&x_old).map(|(a, b)| a - b).collect();
+            if d.iter().all(|&v| v == 0.0) {
+                // The model cannot improve on x: the optimum to working precision.
+                return done;
+            }
+            let delta = self.rates.apply(&d);
+            let t = self.line_search(spec, nu, &x_old, &d, &delta);
+            if t < 1.0 {
+                for j in 0..n {
+                    self.vars.x[j] = x_old[j] + t * d[j];
+                }
+                self.vars.resnap(upper);
+                self.vars.factor_valid = false;
+            }
+            for (zi, di) in self.z.iter_mut().zip(&delta) {
+                *zi += t * di;
+            }
+            self.reclassify(spec);
+            if !done {
+                return false;
+            }
+        }
+    }
+
+    /// Exact minimiser over t ∈ [0, 1] of the true objective along x + t·d (z moves by t·δ).
+    fn line_search(&self, spec: &Spec, nu: f64, x: &[f64], d: &[f64], delta: &[f64]) -> f64 {
+        // φ'(t)/2 is piecewise linear and non-decreasing: α + β·t between breakpoints.
+        let lin = 0.5 * spec.time_penalty + nu;
+        let mut alpha: f64 = d.iter().map(|v| lin * v).sum::<f64>()
+            + spec.ridge * x.iter().zip(d).map(|(a, b)| a * b).sum::<f64>();
+        let mut beta: f64 = spec.ridge * d.iter().map(|v| v * v).sum::<f64>();
+        let mut events: Vec<(f64, usize, bool)> = Vec::new();
+        for i in 0..self.rates.cells() {
+            let (z, dz) = (self.z[i], delta[i]);
+            let (lo, hi, w) = (spec.lo[i], spec.hi[i], spec.weights[i]);
+            let class = if lo == hi {
+                Class::Point
+            } else {
+                band_class_at(z, lo, hi, dz)
+            };
+            if let Some(t) = class_target(class, lo, hi) {
+                alpha += w * (z - t) * dz;
+                beta += w * dz * dz;
+            }
+            if class != Class::Point && dz != 0.0 {
+                for (edge, is_lo) in [(lo, true), (hi, false)] {
+                    if edge.is_finite() {
+                        let te = (edge - z) / dz;
+                        if te > 0.0 && te < 1.0 {
+                            events.push((te, i, is_lo));
+                        }
+                    }
+                }
+            }
+        }
+        events.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let root = |alpha: f64, beta: f64, t0: f64, t1: f64| {
+            if beta > 0.0 {
+                (-alpha / beta).clamp(t0, t1)
+            } else {
+                t0
+            }
+        };
+        let mut t0 = 0.0;
+        for &(te, i, is_lo) in &events {
+            if alpha + beta * te >= 0.0 {
+                return root(alpha, beta, t0, te);
+            }
+            // Cell i reaches an edge at te: swap its contribution for that of the class it enters.
+            let (z, dz) = (self.z[i], delta[i]);
+            let (lo, hi, w) = (spec.lo[i], spec.hi[i], spec.weights[i]);
+            let (before, after) = match (is_lo, dz > 0.0) {
+                (true, true) => (Class::Below, Class::Inside),
+                (true, false) => (Class::Inside, Class::Below),
+                (false, true) => (Class::Inside, Class::Above),
+                (false, false) => (Class::Above, Class::Inside),
+            };
+            for (class, sign) in [(before, -1.0), (after, 1.0)] {
+                if let Some(t) = class_target(class, lo, hi) {
+                    alpha += sign * w * (z - t) * dz;
+                    beta += sign * w * dz * dz;
+                }
+            }
+            t0 = te;
+        }
+        if alpha + beta >= 0.0 {
+            root(alpha, beta, t0, 1.0)
+        } else {
+            1.0
+        }
+    }
+
+    /// Multiplier search for a binding budget. Returns false if any inner solve hit its limit.
+    fn budget_search(&mut self, spec: &Spec, upper: &[f64], budget: f64, it: &mut Iterations) -> bool {
+        let total = |s: &Self| s.vars.x.iter().sum::<f64>() - budget;
+        let mut ok = true;
+        let (mut lo, mut s_lo) = (0.0, total(self));
+        // At ν ≥ max_j ‖a_j‖·‖t‖ + |μ| every gradient is non-negative at x = 0 (Cauchy–Schwarz), so Σx(ν) = 0.
+        let y = kkt::target_scale(spec);
+        let mut hi = self.colnorm2.iter().fold(0.0f64, |m, c| m.max(c.sqrt() * y)) * (1.0 + 1e-9) + 1e-300;
+        let mut s_hi = -budget;
+        let mut have_hi_solution = false;
+        let mut side = 0i8;
+        while it.budget < MAX_BUDGET {
+            let nu = if it.budget == 0 && self.nu > 0.0 && self.nu < hi {
+                self.nu
+            } else {
+                let r = hi - s_hi * (hi - lo) / (s_hi - s_lo);
+                if r.is_finite() && r > lo && r < hi { r } else { 0.5 * (lo + hi) }
+            };
+            it.budget += 1;
+            ok &= self.newton(spec, upper, nu, it);
+            let s = total(self);
+            if s.abs() <= 1e-11 * budget.max(1e-300) {
+                self.nu = nu;
+                return ok;
+            }
+            if s > 0.0 {
+                lo = nu;
+                s_lo = s;
+                if side == -1 {
+                    s_hi *= 0.5;
+                }
+                side = -1;
+            } else {
+                hi = nu;
+                s_hi = s;
+                have_hi_solution = true;
+                if side == 1 {
+                    s_lo *= 0.5;
+                }
+                side = 1;
+            }
+            if hi - lo <= 1e-15 * hi {
+                break;
+            }
+        }
+        // Land on a feasible point: re-solve at the upper end of the bracket, then trim any round-off excess.
+        if !have_hi_solution || total(self) > 0.0 {
+            ok &= self.newton(spec, upper, hi, it);
+        }
+        let sum: f64 = self.vars.x.iter().sum();
+        if sum > budget {
+            let x: Vec<f64> = self.vars.x.iter().map(|v| v * budget / sum).collect();
+            self.move_to(spec, &x);
+            self.vars.resnap(upper);
+        }
+        self.nu = hi;
+        ok && it.budget < MAX_BUDGET
+    }
+
+    fn solution(&self, spec: &Spec, status: Status, iterations: Iterations) -> Solution {
+        let x = self.vars.x.clone();
+        let n = x.len();
+        let grad: Vec<f64> = (0..n)
+            .map(|j| {
+                let s: f64 = self.gram.column(j).iter().zip(&x).map(|(a, b)| a * b).sum();
+                s - self.b[j] + 0.5 * spec.time_penalty + spec.ridge * x[j]
+            })
+            .collect();
+        let scales = kkt::gradient_scales(&self.colnorm2, spec, &x);
+        let report = kkt::from_gradient(&grad, &x, spec, &scales);
+        let time_scale = spec
+            .budget
+            .unwrap_or(0.0)
+            .max(x.iter().fold(0.0, |m: f64, v| m.max(*v)));
+        let band: Vec<f64> = self
+            .z
+            .iter()
+            .enumerate()
+            .map(|(i, &z)| band_distance(z, spec.lo[i], spec.hi[i]))
+            .collect();
+        Solution {
+            objective: objective(spec, &self.z, &x),
+            achieved: self.z.clone(),
+            band_distance: band,
+            status,
+            budget_multiplier: 2.0 * report.budget_multiplier,
+            iterations,
+            kkt_residual: report.residual(time_scale),
+            dwell: x,
+        }
+    }
+}
+
+fn class_target(class: Class, lo: f64, hi: f64) -> Option<f64> {
+    match class {
+        Class::Inside => None,
+        Class::Below | Class::Point => Some(lo),
+        Class::Above => Some(hi),
+    }
+}
+
+/// Class of a band cell at value `z` moving in direction `dz` (ties resolved by the direction of motion).
+fn band_class_at(z: f64, lo: f64, hi: f64, dz: f64) -> Class {
+    if z < lo || (z == lo && dz < 0.0) {
+        Class::Below
+    } else if z > hi || (z == hi && dz > 0.0) {
+        Class::Above
+    } else {
+        Class::Inside
+    }
+}
+

@@ -1,0 +1,88 @@
+//! Small problems with published or hand-derivable answers.
+
+use traycast_solver::{DwellSolver, Rates, Spec, Status, kkt};
+
+/// MathWorks documentation, `lsqnonneg`, example "Nonnegative Linear Least Squares":
+/// C (4×2) and d as printed there; the documented answer is x = [0; 0.6929] with residual norm² 0.8315.
+/// (Values recalled from memory; SciPy 1.17 `nnls` on the same data gives x = [0, 0.6929344],
+/// ‖Cx − d‖² = 0.8314560, which confirms them.)
+#[test]
+fn lsqnonneg_documentation_example() {
+    let c = [
+        0.0372, 0.2869, 0.6861, 0.7071, 0.6233, 0.6245, 0.6344, 0.6170,
+    ];
+    let d = [0.8587, 0.1781, 0.0747, 0.8405];
+    let rates = Rates::from_row_major(4, 2, &c).unwrap();
+    let sol = DwellSolver::new(rates).solve(&Spec::point(&d, 2)).unwrap();
+    assert_eq!(sol.status, Status::Optimal);
+    assert_eq!(sol.dwell[0], 0.0);
+    assert!((sol.dwell[1] - 0.6929344).abs() < 1e-6, "{:?}", sol.dwell);
+    assert!((sol.objective - 0.8314560).abs() < 1e-6, "{}", sol.objective);
+}
+
+/// Hand-derived: one cell, one configuration, band [lo, hi]; the optimum lands on the nearer edge's
+/// reachable side, and a budget below that caps it.
+#[test]
+fn single_cell_band_and_budget() {
+    let rates = Rates::from_row_major(1, 1, &[0.5]).unwrap();
+    let mut solver = DwellSolver::new(rates);
+    let mut spec = Spec::band(vec![40.0], vec![50.0], 1);
+    let sol = solver.solve(&spec).unwrap();
+    assert_eq!(sol.band_distance[0], 0.0);
+    assert!(sol.dwell[0] >= 80.0 - 1e-9 && sol.dwell[0] <= 100.0 + 1e-9);
+    spec.budget = Some(60.0);
+    let sol = solver.solve(&spec).unwrap();
+    assert_eq!(sol.status, Status::BudgetBinding);
+    assert!((sol.dwell[0] - 60.0).abs() < 1e-9);
+    assert!((sol.band_distance[0] + 10.0).abs() < 1e-9);
+    // d/dT of 0.25·(0.5T − 40)²·... : objective (0.5T − 40)², derivative −0.5·2·(0.5·60 − 40) = 10 per second.
+    assert!((sol.budget_multiplier - 10.0).abs() < 1e-6, "{}", sol.budget_multiplier);
+}
+
+/// Degenerate inputs that must simply work: zero columns, duplicate columns, m < n, zero targets.
+#[test]
+fn degenerate_inputs_are_solved() {
+    let rows = [0.0, 1.0, 1.0, 0.2, 0.0, 2.0, 2.0, 0.1];
+    let rates = Rates::from_row_major(2, 4, &rows).unwrap();
+    let mut solver = DwellSolver::new(rates.clone());
+    for target in [[10.0, 20.0], [0.0, 0.0], [-5.0, 3.0]] {
+        let spec = Spec::point(&target, 4);
+        let sol = solver.solve(&spec).unwrap();
+        let k = kkt::check(&rates, &spec, &sol.dwell);
+        assert!(k.stationarity < 1e-8, "{target:?}: {k:?}");
+        assert_eq!(sol.dwell[0], 0.0, "zero column stays at zero");
+        assert!(sol.dwell.iter().all(|v| v.is_finite() && *v >= 0.0));
+    }
+    let empty = Rates::from_row_major(0, 3, &[]).unwrap();
+    let sol = DwellSolver::new(empty).solve(&Spec::point(&[], 3)).unwrap();
+    assert_eq!(sol.dwell, vec![0.0; 3]);
+}
+
+#[test]
+fn bad_input_is_a_typed_error() {
+    use traycast_solver::{Field, InputError};
+    assert!(matches!(
+        Rates::from_row_major(1, 2, &[0.1, f64::NAN]),
+        Err(InputError::NotFinite { field: Field::Rates, index: Some(0), config: Some(1), .. })
+    ));
+    assert!(matches!(
+        Rates::from_row_major(1, 2, &[0.1, -0.2]),
+        Err(InputError::NegativeRate { cell: 0, config: 1, .. })
+    ));
+    let rates = Rates::from_row_major(2, 1, &[0.1, 0.2]).unwrap();
+    let mut s = DwellSolver::new(rates);
+    let mut spec = Spec::band(vec![1.0, 5.0], vec![2.0, 4.0], 1);
+    assert!(matches!(s.solve(&spec), Err(InputError::BandInverted { cell: 1, .. })));
+    spec.hi[1] = 6.0;
+    spec.weights[0] = 0.0;
+    assert!(matches!(s.solve(&spec), Err(InputError::NonPositiveWeight { cell: 0, .. })));
+    spec.weights[0] = 1.0;
+    spec.upper[0] = -1.0;
+    assert!(matches!(s.solve(&spec), Err(InputError::Negative { field: Field::Limits, .. })));
+    spec.upper[0] = f64::INFINITY;
+    spec.budget = Some(f64::NAN);
+    assert!(matches!(s.solve(&spec), Err(InputError::NotFinite { field: Field::Budget, .. })));
+    spec.budget = None;
+    spec.lo.pop();
+    assert!(matches!(s.solve(&spec), Err(InputError::Dimension { field: Field::Lower, .. })));
+}
