@@ -116,43 +116,45 @@ fn max_step(x: &[f64], idx: &[usize], d: &[f64], upper: &[f64]) -> (f64, usize, 
     best
 }
 
-/// Rebuilds the factor for the current free set. A free column found dependent on earlier ones is
-/// resolved exactly: step along the null direction (never uphill) until some variable reaches a bound.
-pub(crate) fn refactor(q: &Quad, v: &mut Vars) {
-    v.factor.clear();
-    let n = v.x.len();
-    for j in 0..n {
-        if v.state[j] != Bound::Free {
-            continue;
+/// Brings free variable `j` into the factor. If its column depends on the free ones, step along the
+/// null direction (d_P, ±1) downhill — the quadratic term is zero there, so the objective falls
+/// linearly — until some variable binds; drop that one and retry. Returns true if `j` ends in the
+/// factor, false if it ends at a bound.
+fn absorb(q: &Quad, v: &mut Vars, j: usize) -> bool {
+    loop {
+        let col: Vec<f64> = v.factor.order.iter().map(|&i| q.q(i, j)).collect();
+        let Append::Dependent { null } = v.factor.append(j, &col, q.q(j, j)) else {
+            return true;
+        };
+        let mut idx = v.factor.order.clone();
+        idx.push(j);
+        let mut d = null;
+        d.push(1.0);
+        let slope: f64 = idx.iter().zip(&d).map(|(&i, &di)| q.grad(&v.x, i) * di).sum();
+        if slope > 0.0 || !max_step(&v.x, &idx, &d, q.upper).0.is_finite() {
+            d.iter_mut().for_each(|e| *e = -*e);
         }
-        loop {
-            let col: Vec<f64> = v.factor.order.iter().map(|&i| q.q(i, j)).collect();
-            let Append::Dependent { null } = v.factor.append(j, &col, q.q(j, j)) else {
-                break;
-            };
-            let mut idx = v.factor.order.clone();
-            idx.push(j);
-            let mut d = null;
-            d.push(1.0);
-            let slope: f64 = idx.iter().zip(&d).map(|(&i, &di)| q.grad(&v.x, i) * di).sum();
-            if slope > 0.0 {
-                d.iter_mut().for_each(|e| *e = -*e);
-            }
-            let mut step = max_step(&v.x, &idx, &d, q.upper);
-            if !step.0.is_finite() {
-                d.iter_mut().for_each(|e| *e = -*e);
-                step = max_step(&v.x, &idx, &d, q.upper);
-            }
-            let (t, hit, bound) = step;
+        let (t, hit, bound) = max_step(&v.x, &idx, &d, q.upper);
+        if t.is_finite() {
             for (&i, &di) in idx.iter().zip(&d) {
                 v.x[i] += t * di;
             }
-            v.set_bound(hit, bound, q.upper);
-            if hit == j {
-                break;
-            }
-            let p = v.factor.position(hit).expect("blocking variable is free");
-            v.factor.remove(p);
+        }
+        v.set_bound(hit, bound, q.upper);
+        if hit == j {
+            return false;
+        }
+        let p = v.factor.position(hit).expect("blocking variable is free");
+        v.factor.remove(p);
+    }
+}
+
+/// Rebuilds the factor for the current free set, resolving dependent columns exactly (see [`absorb`]).
+pub(crate) fn refactor(q: &Quad, v: &mut Vars) {
+    v.factor.clear();
+    for j in 0..v.x.len() {
+        if v.state[j] == Bound::Free {
+            absorb(q, v, j);
         }
     }
     v.factor_valid = true;
@@ -276,26 +278,36 @@ pub(crate) fn solve(q: &Quad, v: &mut Vars, iters: &mut usize, max_iters: usize)
             let Some((_, j)) = best else {
                 return true;
             };
-            let col: Vec<f64> = v.factor.order.iter().map(|&i| q.q(i, j)).collect();
-            if let Append::Dependent { .. } = v.factor.append(j, &col, q.q(j, j)) {
-                blocked[j] = true;
+            let (from, x_before) = (v.state[j], v.x[j]);
+            v.state[j] = Bound::Free;
+            if !absorb(q, v, j) {
+                if v.state[j] == from && v.x[j] == x_before {
+                    blocked[j] = true;
+                } else {
+                    // j crossed to its other bound along a null direction: progress, look again.
+                    blocked.iter_mut().for_each(|b| *b = false);
+                    *iters += 1;
+                    if *iters >= max_iters {
+                        return false;
+                    }
+                }
                 continue;
             }
-            let from = v.state[j];
-            v.state[j] = Bound::Free;
-            let at_upper = upper_set(v);
-            free_solve(q, v, &at_upper, &mut z);
-            let zj = z[z.len() - 1];
-            let moves_in = match from {
-                Bound::Lower => zj > 0.0,
-                _ => zj < q.upper[j],
-            };
-            if !moves_in {
-                v.state[j] = from;
-                let last = v.factor.len() - 1;
-                v.factor.remove(last);
-                blocked[j] = true;
-                continue;
+            if v.x[j] == x_before {
+                // Lawson–Hanson check: only keep j free if the free-block solution moves it inward.
+                let at_upper = upper_set(v);
+                free_solve(q, v, &at_upper, &mut z);
+                let p = v.factor.position(j).expect("j was just added");
+                let moves_in = match from {
+                    Bound::Lower => z[p] > 0.0,
+                    _ => z[p] < q.upper[j],
+                };
+                if !moves_in {
+                    v.factor.remove(p);
+                    v.state[j] = from;
+                    blocked[j] = true;
+                    continue;
+                }
             }
             blocked.iter_mut().for_each(|b| *b = false);
             break;

@@ -146,14 +146,27 @@ impl DwellSolver {
             }
             return Ok(());
         };
+        if cells.len() * 4 > m {
+            for (k, &cell) in cells.iter().enumerate() {
+                self.rates.replace_row(cell, &rows[k * n..(k + 1) * n]);
+            }
+            self.z = self.rates.apply(&self.vars.x);
+            self.rebuild(&spec);
+            self.spec = Some(spec);
+            return Ok(());
+        }
         // Remove the old rows' contributions, swap the rows in, add the new ones.
         let removal: Vec<Change> = cells.iter().map(|&c| self.negated(&spec, c)).collect();
-        self.apply_changes(&removal, &spec);
+        self.low_rank(&removal);
         for (k, &cell) in cells.iter().enumerate() {
             self.rates.replace_row(cell, &rows[k * n..(k + 1) * n]);
             let a = self.rates.matrix();
             self.z[cell] = (0..n).map(|j| a[(cell, j)] * self.vars.x[j]).sum();
             self.class[cell] = classify(self.z[cell], spec.lo[cell], spec.hi[cell]);
+            let w = spec.weights[cell];
+            for j in 0..n {
+                self.colnorm2[j] += w * a[(cell, j)] * a[(cell, j)];
+            }
         }
         let addition: Vec<Change> = cells
             .iter()
@@ -163,14 +176,6 @@ impl DwellSolver {
             })
             .collect();
         self.apply_changes(&addition, &spec);
-        for &c in cells {
-            let w = spec.weights[c];
-            let a = self.rates.matrix();
-            for j in 0..n {
-                // colnorm2 was reduced by the removal pass; add the new row back.
-                self.colnorm2[j] += w * a[(c, j)] * a[(c, j)];
-            }
-        }
         self.vars.factor_valid = false;
         self.spec = Some(spec);
         Ok(())
@@ -287,6 +292,16 @@ impl DwellSolver {
         if changes.is_empty() {
             return;
         }
+        let grams = changes.iter().filter(|c| c.dg != 0.0).count();
+        if self.updates_since_rebuild + grams > REBUILD_AFTER || grams * 4 > self.rates.cells() {
+            self.rebuild(spec);
+            return;
+        }
+        self.low_rank(changes);
+    }
+
+    /// Gram and b corrections for `changes` with the rows as they stand, never a rebuild.
+    fn low_rank(&mut self, changes: &[Change]) {
         let n = self.rates.configs();
         let a = self.rates.matrix();
         for ch in changes {
@@ -302,10 +317,6 @@ impl DwellSolver {
         }
         self.vars.factor_valid = false;
         self.updates_since_rebuild += grams.len();
-        if self.updates_since_rebuild > REBUILD_AFTER || grams.len() * 4 > self.rates.cells() {
-            self.rebuild(spec);
-            return;
-        }
         if grams.len() == 1 {
             let c = grams[0];
             for j in 0..n {
@@ -499,10 +510,29 @@ impl DwellSolver {
         let y = kkt::target_scale(spec);
         let mut hi = self.colnorm2.iter().fold(0.0f64, |m, c| m.max(c.sqrt() * y)) * (1.0 + 1e-9) + 1e-300;
         let mut s_hi = -budget;
+        // When the optimum at ν = 0 is not unique, Σx can jump at 0: a tiny ν picks the optimum with
+        // the least total time, and if that one fits, the budget does not really bind.
+        // The probe must be well above the KKT tolerance to steer the active set; the re-solve at ν = 0
+        // from the probe's active set then removes its bias.
+        let probe = hi * 1e-7;
+        it.budget += 1;
+        ok &= self.newton(spec, upper, probe, it);
+        let s = total(self);
+        if s <= 0.0 {
+            let saved = (self.vars.clone(), self.z.clone());
+            ok &= self.newton(spec, upper, 0.0, it);
+            if total(self) > 0.0 {
+                (self.vars, self.z) = saved;
+                self.reclassify(spec);
+            }
+            self.nu = 0.0;
+            return ok;
+        }
+        (lo, s_lo) = (probe, s);
         let mut have_hi_solution = false;
         let mut side = 0i8;
         while it.budget < MAX_BUDGET {
-            let nu = if it.budget == 0 && self.nu > 0.0 && self.nu < hi {
+            let nu = if it.budget == 1 && self.nu > lo && self.nu < hi {
                 self.nu
             } else {
                 let r = hi - s_hi * (hi - lo) / (s_hi - s_lo);
