@@ -42,9 +42,20 @@ impl Quad<'_> {
         s + self.ridge * x[j] - self.c[j]
     }
 
-    /// How far variable j violates its optimality condition (≤ 0 when satisfied), in units of its tolerance.
-    pub fn violation(&self, x: &[f64], state: Bound, j: usize) -> f64 {
-        let g = self.grad(x, j);
+    /// Gradient component using only the variables in `support` (all others are zero).
+    fn grad_on(&self, x: &[f64], support: &[usize], j: usize) -> f64 {
+        let col = self.gram.column(j);
+        let s: f64 = support.iter().map(|&i| col[i] * x[i]).sum();
+        s + self.ridge * x[j] - self.c[j]
+    }
+
+    /// How far variable j violates its optimality condition (≤ 1 when satisfied), in units of its
+    /// tolerance; `support` lists the non-zero entries of x.
+    pub fn violation_on(&self, x: &[f64], support: &[usize], state: Bound, j: usize) -> f64 {
+        self.violation_with(self.grad_on(x, support, j), state, j)
+    }
+
+    fn violation_with(&self, g: f64, state: Bound, j: usize) -> f64 {
         let v = match state {
             Bound::Lower => -g,
             Bound::Upper => g,
@@ -130,7 +141,11 @@ fn absorb(q: &Quad, v: &mut Vars, j: usize) -> bool {
         idx.push(j);
         let mut d = null;
         d.push(1.0);
-        let slope: f64 = idx.iter().zip(&d).map(|(&i, &di)| q.grad(&v.x, i) * di).sum();
+        let slope: f64 = idx
+            .iter()
+            .zip(&d)
+            .map(|(&i, &di)| q.grad(&v.x, i) * di)
+            .sum();
         if slope > 0.0 || !max_step(&v.x, &idx, &d, q.upper).0.is_finite() {
             d.iter_mut().for_each(|e| *e = -*e);
         }
@@ -160,8 +175,8 @@ pub(crate) fn refactor(q: &Quad, v: &mut Vars) {
     v.factor_valid = true;
 }
 
-/// Solves the free block for the current bound values, with one step of iterative refinement.
-fn free_solve(q: &Quad, v: &Vars, at_upper: &[usize], z: &mut Vec<f64>) {
+/// Solves the free block for the current bound values; `refine` adds one step of iterative refinement.
+fn free_solve(q: &Quad, v: &Vars, at_upper: &[usize], z: &mut Vec<f64>, refine: bool) {
     let order = &v.factor.order;
     z.clear();
     z.extend(order.iter().map(|&j| {
@@ -171,6 +186,10 @@ fn free_solve(q: &Quad, v: &Vars, at_upper: &[usize], z: &mut Vec<f64>) {
                 .map(|&i| q.q(j, i) * q.upper[i])
                 .sum::<f64>()
     }));
+    if !refine {
+        v.factor.solve(z);
+        return;
+    }
     let rhs = z.clone();
     v.factor.solve(z);
     let mut r: Vec<f64> = (0..order.len())
@@ -190,6 +209,26 @@ fn free_solve(q: &Quad, v: &Vars, at_upper: &[usize], z: &mut Vec<f64>) {
     }
 }
 
+/// At the optimum, one refined solve of the free block removes the factor's rounding where it stays feasible.
+fn polish(q: &Quad, v: &mut Vars, z: &mut Vec<f64>) {
+    if v.factor.len() == 0 {
+        return;
+    }
+    let at_upper = upper_set(v);
+    free_solve(q, v, &at_upper, z, true);
+    let inside = v
+        .factor
+        .order
+        .iter()
+        .zip(z.iter())
+        .all(|(&j, &zj)| zj > 0.0 && zj < q.upper[j]);
+    if inside {
+        for (p, &j) in v.factor.order.iter().enumerate() {
+            v.x[j] = z[p];
+        }
+    }
+}
+
 fn upper_set(v: &Vars) -> Vec<usize> {
     (0..v.x.len())
         .filter(|&j| v.state[j] == Bound::Upper)
@@ -205,11 +244,16 @@ pub(crate) fn solve(q: &Quad, v: &mut Vars, iters: &mut usize, max_iters: usize)
     let n = v.x.len();
     let mut blocked = vec![false; n];
     let mut z = Vec::with_capacity(n);
+    // True when z already holds the free-block solution for the current free set.
+    let mut z_ready = false;
     loop {
         // Inner loop: move to the free-block optimum, stepping back at bounds.
         loop {
-            let at_upper = upper_set(v);
-            free_solve(q, v, &at_upper, &mut z);
+            if !z_ready {
+                let at_upper = upper_set(v);
+                free_solve(q, v, &at_upper, &mut z, false);
+            }
+            z_ready = false;
             let mut alpha = 1.0;
             let mut hit: Option<(usize, Bound)> = None;
             for (p, &j) in v.factor.order.iter().enumerate() {
@@ -266,16 +310,18 @@ pub(crate) fn solve(q: &Quad, v: &mut Vars, iters: &mut usize, max_iters: usize)
         // Outer loop: free the bound variable that most violates its multiplier sign.
         loop {
             let mut best: Option<(f64, usize)> = None;
+            let support: Vec<usize> = (0..n).filter(|&i| v.x[i] != 0.0).collect();
             for j in 0..n {
                 if v.state[j] == Bound::Free || blocked[j] {
                     continue;
                 }
-                let viol = q.violation(&v.x, v.state[j], j);
+                let viol = q.violation_with(q.grad_on(&v.x, &support, j), v.state[j], j);
                 if viol > 1.0 && best.is_none_or(|(b, _)| viol > b) {
                     best = Some((viol, j));
                 }
             }
             let Some((_, j)) = best else {
+                polish(q, v, &mut z);
                 return true;
             };
             let (from, x_before) = (v.state[j], v.x[j]);
@@ -296,7 +342,7 @@ pub(crate) fn solve(q: &Quad, v: &mut Vars, iters: &mut usize, max_iters: usize)
             if v.x[j] == x_before {
                 // Lawson–Hanson check: only keep j free if the free-block solution moves it inward.
                 let at_upper = upper_set(v);
-                free_solve(q, v, &at_upper, &mut z);
+                free_solve(q, v, &at_upper, &mut z, false);
                 let p = v.factor.position(j).expect("j was just added");
                 let moves_in = match from {
                     Bound::Lower => z[p] > 0.0,
@@ -308,6 +354,7 @@ pub(crate) fn solve(q: &Quad, v: &mut Vars, iters: &mut usize, max_iters: usize)
                     blocked[j] = true;
                     continue;
                 }
+                z_ready = true;
             }
             blocked.iter_mut().for_each(|b| *b = false);
             break;

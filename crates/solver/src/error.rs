@@ -136,10 +136,9 @@ impl fmt::Display for InputError {
                 f,
                 "heating rate {value} K/s at cell {cell}, configuration {config} is negative; rates must be ≥ 0"
             ),
-            InputError::BandInverted { cell, lo, hi } => write!(
-                f,
-                "band at cell {cell} has minimum {lo} above maximum {hi}"
-            ),
+            InputError::BandInverted { cell, lo, hi } => {
+                write!(f, "band at cell {cell} has minimum {lo} above maximum {hi}")
+            }
             InputError::NonPositiveWeight { cell, value } => {
                 write!(f, "weight {value} at cell {cell} must be greater than 0")
             }

@@ -79,7 +79,7 @@ impl Factor {
         let mut l = col.to_vec();
         self.forward(&mut l);
         let d2 = diag - l.iter().map(|v| v * v).sum::<f64>();
-        if !(d2 > DEPENDENCE * diag) || diag <= 0.0 {
+        if d2.is_nan() || d2 <= DEPENDENCE * diag || diag <= 0.0 {
             let mut null = l;
             self.backward(&mut null);
             null.iter_mut().for_each(|v| *v = -*v);
@@ -156,11 +156,7 @@ mod tests {
         let k = f.len();
         let x_true: Vec<f64> = (0..k).map(|i| 1.0 + i as f64).collect();
         let mut b: Vec<f64> = (0..k)
-            .map(|r| {
-                (0..k)
-                    .map(|c| q[f.order[r]][f.order[c]] * x_true[c])
-                    .sum()
-            })
+            .map(|r| (0..k).map(|c| q[f.order[r]][f.order[c]] * x_true[c]).sum())
             .collect();
         f.solve(&mut b);
         for (a, e) in b.iter().zip(&x_true) {

@@ -19,7 +19,8 @@ pub struct Kkt {
 impl Kkt {
     /// One number: stationarity plus infeasibility relative to the largest time scale involved.
     pub fn residual(&self, time_scale: f64) -> f64 {
-        self.stationarity.max(self.infeasibility / time_scale.max(1.0))
+        self.stationarity
+            .max(self.infeasibility / time_scale.max(1.0))
     }
 }
 
@@ -58,9 +59,7 @@ pub(crate) fn from_gradient(grad: &[f64], x: &[f64], spec: &Spec, scales: &[f64]
     let total: f64 = x.iter().sum();
     let mut infeasibility = (total - budget).max(0.0);
     for (j, &xj) in x.iter().enumerate() {
-        infeasibility = infeasibility
-            .max(-xj)
-            .max(xj - spec.upper[j]);
+        infeasibility = infeasibility.max(-xj).max(xj - spec.upper[j]);
     }
     let at_lower = |j: usize| x[j] <= 0.0;
     let at_upper = |j: usize| x[j] >= spec.upper[j] * (1.0 - 1e-12);
@@ -81,7 +80,10 @@ pub(crate) fn from_gradient(grad: &[f64], x: &[f64], spec: &Spec, scales: &[f64]
     let binding = budget.is_finite() && total >= budget * (1.0 - 1e-9);
     let nu = if binding {
         // The worst violation is convex in ν: ternary search on [0, max |g|].
-        let (mut a, mut b) = (0.0, grad.iter().fold(0.0f64, |m, g| m.max(g.abs())) * 2.0 + 1.0);
+        let (mut a, mut b) = (
+            0.0,
+            grad.iter().fold(0.0f64, |m, g| m.max(g.abs())) * 2.0 + 1.0,
+        );
         for _ in 0..200 {
             let (m1, m2) = (a + (b - a) / 3.0, b - (b - a) / 3.0);
             if worst(m1) <= worst(m2) {

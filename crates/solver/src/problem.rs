@@ -71,7 +71,9 @@ impl Rates {
 
     /// Replaces one cell's row after checking it; returns the old row.
     pub(crate) fn replace_row(&mut self, cell: usize, row: &[f64]) -> Vec<f64> {
-        let old = (0..self.configs()).map(|j| self.matrix[(cell, j)]).collect();
+        let old = (0..self.configs())
+            .map(|j| self.matrix[(cell, j)])
+            .collect();
         for (j, &v) in row.iter().enumerate() {
             self.matrix[(cell, j)] = v;
         }
@@ -80,15 +82,8 @@ impl Rates {
 
     /// Linear prediction A·x for every cell.
     pub fn apply(&self, x: &[f64]) -> Vec<f64> {
-        let mut z = vec![0.0; self.cells()];
-        for (j, &xj) in x.iter().enumerate() {
-            if xj != 0.0 {
-                for (zi, &a) in z.iter_mut().zip(self.matrix.column(j).iter()) {
-                    *zi += a * xj;
-                }
-            }
-        }
-        z
+        let x = nalgebra::DVectorView::from_slice(x, x.len());
+        (&self.matrix * x).data.into()
     }
 }
 

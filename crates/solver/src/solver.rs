@@ -43,20 +43,31 @@ fn classify(z: f64, lo: f64, hi: f64) -> Class {
     }
 }
 
-/// (Gram weight, b weight) a cell contributes in a class.
-fn contribution(class: Class, w: f64, lo: f64, hi: f64) -> (f64, f64) {
-    match class {
-        Class::Inside => (0.0, 0.0),
-        Class::Below | Class::Point => (w, w * lo),
-        Class::Above => (w, w * hi),
+/// What a cell contributes in a class: (w to the Gram, w·t to b, w·t² to the constant).
+fn contribution(class: Class, w: f64, lo: f64, hi: f64) -> (f64, f64, f64) {
+    match class_target(class, lo, hi) {
+        None => (0.0, 0.0, 0.0),
+        Some(t) => (w, w * t, w * t * t),
     }
 }
 
-/// A cell whose contribution to the Gram (`dg`) and to b (`db`) changes.
+/// A cell whose contribution to the Gram (`dg`), to b (`db`) and to Σ w·t² (`dyy`) changes.
 struct Change {
     cell: usize,
     dg: f64,
     db: f64,
+    dyy: f64,
+}
+
+impl Change {
+    fn between(cell: usize, before: (f64, f64, f64), after: (f64, f64, f64)) -> Self {
+        Change {
+            cell,
+            dg: after.0 - before.0,
+            db: after.1 - before.1,
+            dyy: after.2 - before.2,
+        }
+    }
 }
 
 /// Dwell solver for one rate matrix, reusable across specifications.
@@ -77,8 +88,12 @@ pub struct DwellSolver {
     class: Vec<Class>,
     gram: DMatrix<f64>,
     b: Vec<f64>,
+    /// Σ w·t² over the active cells: the objective's constant, so it can be evaluated from the Gram.
+    yy: f64,
     colnorm2: Vec<f64>,
     z: Vec<f64>,
+    /// True when x moved without z following (point-target solves defer A·x to the end).
+    z_stale: bool,
     vars: Vars,
     nu: f64,
     updates_since_rebuild: usize,
@@ -95,8 +110,10 @@ impl DwellSolver {
             class: vec![Class::Inside; m],
             gram: DMatrix::zeros(n, n),
             b: vec![0.0; n],
+            yy: 0.0,
             colnorm2: vec![0.0; n],
             z: vec![0.0; m],
+            z_stale: false,
             vars: Vars::new(n),
             nu: 0.0,
             updates_since_rebuild: 0,
@@ -146,6 +163,9 @@ impl DwellSolver {
             }
             return Ok(());
         };
+        if cells.iter().any(|&c| spec.lo[c] != spec.hi[c]) {
+            self.ensure_z();
+        }
         if cells.len() * 4 > m {
             for (k, &cell) in cells.iter().enumerate() {
                 self.rates.replace_row(cell, &rows[k * n..(k + 1) * n]);
@@ -171,8 +191,8 @@ impl DwellSolver {
         let addition: Vec<Change> = cells
             .iter()
             .map(|&c| {
-                let (dg, db) = contribution(self.class[c], spec.weights[c], spec.lo[c], spec.hi[c]);
-                Change { cell: c, dg, db }
+                let add = contribution(self.class[c], spec.weights[c], spec.lo[c], spec.hi[c]);
+                Change::between(c, (0.0, 0.0, 0.0), add)
             })
             .collect();
         self.apply_changes(&addition, &spec);
@@ -182,21 +202,37 @@ impl DwellSolver {
     }
 
     fn negated(&mut self, spec: &Spec, c: usize) -> Change {
-        let (dg, db) = contribution(self.class[c], spec.weights[c], spec.lo[c], spec.hi[c]);
+        let old = contribution(self.class[c], spec.weights[c], spec.lo[c], spec.hi[c]);
         let w = spec.weights[c];
         let a = self.rates.matrix();
         for j in 0..self.rates.configs() {
             self.colnorm2[j] -= w * a[(c, j)] * a[(c, j)];
         }
-        Change {
-            cell: c,
-            dg: -dg,
-            db: -db,
-        }
+        Change::between(c, old, (0.0, 0.0, 0.0))
+    }
+
+    /// Validates `spec` and brings the cache (Gram matrix of the cells outside their bands) in line
+    /// with it without solving: the first call builds it, later calls apply low-rank corrections.
+    pub fn prepare(&mut self, spec: &Spec) -> Result<(), InputError> {
+        spec.validate(self.rates.cells(), self.rates.configs())?;
+        self.sync_spec(spec);
+        Ok(())
     }
 
     /// Solves for `spec`, warm-starting from the previous solve where possible.
     pub fn solve(&mut self, spec: &Spec) -> Result<Solution, InputError> {
+        self.solve_inner(spec, true)
+    }
+
+    /// The same answer as [`DwellSolver::solve`] without the per-cell predictions: `achieved` and
+    /// `band_distance` come back empty. With point targets this skips the one A·x product a solve
+    /// otherwise ends with (the objective then comes from the Gram matrix), which is what an
+    /// interactive caller wants before it redraws.
+    pub fn solve_dwell(&mut self, spec: &Spec) -> Result<Solution, InputError> {
+        self.solve_inner(spec, false)
+    }
+
+    fn solve_inner(&mut self, spec: &Spec, predictions: bool) -> Result<Solution, InputError> {
         let (m, n) = (self.rates.cells(), self.rates.configs());
         spec.validate(m, n)?;
         self.sync_spec(spec);
@@ -219,7 +255,7 @@ impl DwellSolver {
         if !converged {
             status = Status::IterationLimit;
         }
-        Ok(self.solution(spec, status, it))
+        Ok(self.solution(spec, status, it, predictions))
     }
 
     /// Brings the cached classification, Gram matrix and b in line with `spec` by diffing against the last one.
@@ -229,29 +265,32 @@ impl DwellSolver {
             self.spec = Some(spec.clone());
             return;
         };
-        let a = self.rates.matrix();
         let n = self.rates.configs();
         let mut changes = Vec::new();
         for i in 0..self.rates.cells() {
-            let same = old.lo[i] == spec.lo[i] && old.hi[i] == spec.hi[i] && old.weights[i] == spec.weights[i];
+            let same = old.lo[i] == spec.lo[i]
+                && old.hi[i] == spec.hi[i]
+                && old.weights[i] == spec.weights[i];
             if same {
                 continue;
             }
             let before = contribution(self.class[i], old.weights[i], old.lo[i], old.hi[i]);
+            if spec.lo[i] != spec.hi[i] && self.z_stale {
+                // Only band cells need the prediction to be classified.
+                self.z = self.rates.apply(&self.vars.x);
+                self.z_stale = false;
+            }
             let class = classify(self.z[i], spec.lo[i], spec.hi[i]);
             let after = contribution(class, spec.weights[i], spec.lo[i], spec.hi[i]);
             self.class[i] = class;
             let dw = spec.weights[i] - old.weights[i];
             if dw != 0.0 {
                 for j in 0..n {
-                    self.colnorm2[j] += dw * a[(i, j)] * a[(i, j)];
+                    let aij = self.rates.get(i, j);
+                    self.colnorm2[j] += dw * aij * aij;
                 }
             }
-            changes.push(Change {
-                cell: i,
-                dg: after.0 - before.0,
-                db: after.1 - before.1,
-            });
+            changes.push(Change::between(i, before, after));
         }
         self.apply_changes(&changes, spec);
         self.spec = Some(spec.clone());
@@ -259,30 +298,59 @@ impl DwellSolver {
 
     /// Builds the Gram matrix and b of the active cells from scratch.
     fn rebuild(&mut self, spec: &Spec) {
+        if spec.lo != spec.hi {
+            self.ensure_z();
+        }
         let (m, n) = (self.rates.cells(), self.rates.configs());
         let a = self.rates.matrix();
         for i in 0..m {
             self.class[i] = classify(self.z[i], spec.lo[i], spec.hi[i]);
         }
         let active: Vec<usize> = (0..m).filter(|&i| self.class[i] != Class::Inside).collect();
-        let mut scaled = DMatrix::zeros(active.len(), n);
-        self.b.iter_mut().for_each(|v| *v = 0.0);
+        let parts: Vec<(f64, f64, f64)> = active
+            .iter()
+            .map(|&i| contribution(self.class[i], spec.weights[i], spec.lo[i], spec.hi[i]))
+            .collect();
+        // One product gives everything: with B = [W½·A_active, W½·t], BᵀB holds the Gram matrix
+        // (top left), b = AᵀW·t (last column) and Σ w·t² (corner).
+        let mut ext = DMatrix::zeros(active.len(), n + 1);
+        let root_w: Vec<f64> = parts.iter().map(|p| p.0.sqrt()).collect();
+        let all_active = active.len() == m;
         for j in 0..n {
             let col = a.column(j);
-            let mut bj = 0.0;
-            for (r, &i) in active.iter().enumerate() {
-                let (gw, bw) = contribution(self.class[i], spec.weights[i], spec.lo[i], spec.hi[i]);
-                scaled[(r, j)] = gw.sqrt() * col[i];
-                bj += bw * col[i];
+            let col = col.as_slice();
+            let mut out_col = ext.column_mut(j);
+            let out = out_col.as_mut_slice();
+            if all_active {
+                for ((o, &c), &r) in out.iter_mut().zip(col).zip(&root_w) {
+                    *o = r * c;
+                }
+            } else {
+                for ((o, &i), &r) in out.iter_mut().zip(&active).zip(&root_w) {
+                    *o = r * col[i];
+                }
             }
-            self.b[j] = bj;
-            self.colnorm2[j] = col
-                .iter()
-                .zip(&spec.weights)
-                .map(|(v, w)| w * v * v)
-                .sum();
         }
-        self.gram = scaled.tr_mul(&scaled);
+        for (r, p) in parts.iter().enumerate() {
+            // √w·t = (w·t)/√w; every active cell has w > 0.
+            ext[(r, n)] = p.1 / root_w[r];
+        }
+        let full = gram_of(&ext);
+        self.gram = full.view((0, 0), (n, n)).into_owned();
+        for j in 0..n {
+            self.b[j] = full[(j, n)];
+        }
+        self.yy = full[(n, n)];
+        // Σ over all cells of w·a²: the Gram diagonal plus the cells inside their bands.
+        for j in 0..n {
+            self.colnorm2[j] = self.gram[(j, j)];
+        }
+        for i in (0..m).filter(|&i| self.class[i] == Class::Inside) {
+            for j in 0..n {
+                let v = a[(i, j)];
+                self.colnorm2[j] += spec.weights[i] * v * v;
+            }
+        }
         self.updates_since_rebuild = 0;
         self.vars.factor_valid = false;
     }
@@ -305,6 +373,7 @@ impl DwellSolver {
         let n = self.rates.configs();
         let a = self.rates.matrix();
         for ch in changes {
+            self.yy += ch.dyy;
             if ch.db != 0.0 {
                 for j in 0..n {
                     self.b[j] += ch.db * a[(ch.cell, j)];
@@ -326,9 +395,10 @@ impl DwellSolver {
             self.gram.ger(c.dg, &row, &row, 1.0);
             return;
         }
-        let rows = DMatrix::from_fn(grams.len(), n, |r, j| a[(grams[r].cell, j)]);
-        let weighted = DMatrix::from_fn(grams.len(), n, |r, j| grams[r].dg * rows[(r, j)]);
-        self.gram.gemm_tr(1.0, &rows, &weighted, 1.0);
+        // G += Rᵀ·D·R with R the changed rows: one matrix product (n × k times k × n).
+        let rows_t = DMatrix::from_fn(n, grams.len(), |j, r| a[(grams[r].cell, j)]);
+        let weighted = DMatrix::from_fn(grams.len(), n, |r, j| grams[r].dg * rows_t[(j, r)]);
+        self.gram.gemm(1.0, &rows_t, &weighted, 1.0);
     }
 
     /// Clips the warm start into the new bounds and budget so the active-set method starts feasible.
@@ -354,7 +424,16 @@ impl DwellSolver {
     fn move_to(&mut self, spec: &Spec, x: &[f64]) {
         self.vars.x.copy_from_slice(x);
         self.z = self.rates.apply(x);
+        self.z_stale = false;
         self.reclassify(spec);
+    }
+
+    /// Recomputes z = A·x if a point-target solve left it behind.
+    fn ensure_z(&mut self) {
+        if self.z_stale {
+            self.z = self.rates.apply(&self.vars.x);
+            self.z_stale = false;
+        }
     }
 
     fn reclassify(&mut self, spec: &Spec) {
@@ -365,11 +444,7 @@ impl DwellSolver {
                 let before = contribution(self.class[i], spec.weights[i], spec.lo[i], spec.hi[i]);
                 let after = contribution(class, spec.weights[i], spec.lo[i], spec.hi[i]);
                 self.class[i] = class;
-                changes.push(Change {
-                    cell: i,
-                    dg: after.0 - before.0,
-                    db: after.1 - before.1,
-                });
+                changes.push(Change::between(i, before, after));
             }
         }
         self.apply_changes(&changes, spec);
@@ -383,6 +458,10 @@ impl DwellSolver {
     /// Finite Newton at a fixed budget multiplier ν. Returns false on an iteration limit.
     fn newton(&mut self, spec: &Spec, upper: &[f64], nu: f64, it: &mut Iterations) -> bool {
         let n = self.rates.configs();
+        let points_only = spec.lo == spec.hi;
+        if !points_only {
+            self.ensure_z();
+        }
         let max_active = 50 * n + 200;
         loop {
             let c = self.linear_term(spec, nu);
@@ -397,7 +476,9 @@ impl DwellSolver {
                 upper,
                 tol: &tol,
             };
-            let optimal = (0..n).all(|j| quad.violation(&self.vars.x, self.vars.state[j], j) <= 1.0);
+            let support: Vec<usize> = (0..n).filter(|&i| self.vars.x[i] != 0.0).collect();
+            let optimal = (0..n)
+                .all(|j| quad.violation_on(&self.vars.x, &support, self.vars.state[j], j) <= 1.0);
             if optimal {
                 return true;
             }
@@ -407,11 +488,22 @@ impl DwellSolver {
             it.newton += 1;
             let x_old = self.vars.x.clone();
             let mut active = it.active_set;
-            let done = boxqp::solve(&quad, &mut self.vars, &mut active, it.active_set + max_active);
+            let done = boxqp::solve(
+                &quad,
+                &mut self.vars,
+                &mut active,
+                it.active_set + max_active,
+            );
             it.active_set = active;
             let d: Vec<f64> = self.vars.x.iter().zip(&x_old).map(|(a, b)| a - b).collect();
             if d.iter().all(|&v| v == 0.0) {
                 // The model cannot improve on x: the optimum to working precision.
+                return done;
+            }
+            if points_only {
+                // With point targets the quadratic model is the objective and no cell changes class:
+                // the box solve is the answer, and A·x can wait until someone needs it.
+                self.z_stale = true;
                 return done;
             }
             let delta = self.rates.apply(&d);
@@ -502,13 +594,23 @@ impl DwellSolver {
     }
 
     /// Multiplier search for a binding budget. Returns false if any inner solve hit its limit.
-    fn budget_search(&mut self, spec: &Spec, upper: &[f64], budget: f64, it: &mut Iterations) -> bool {
+    fn budget_search(
+        &mut self,
+        spec: &Spec,
+        upper: &[f64],
+        budget: f64,
+        it: &mut Iterations,
+    ) -> bool {
         let total = |s: &Self| s.vars.x.iter().sum::<f64>() - budget;
         let mut ok = true;
-        let (mut lo, mut s_lo) = (0.0, total(self));
         // At ν ≥ max_j ‖a_j‖·‖t‖ + |μ| every gradient is non-negative at x = 0 (Cauchy–Schwarz), so Σx(ν) = 0.
         let y = kkt::target_scale(spec);
-        let mut hi = self.colnorm2.iter().fold(0.0f64, |m, c| m.max(c.sqrt() * y)) * (1.0 + 1e-9) + 1e-300;
+        let mut hi = self
+            .colnorm2
+            .iter()
+            .fold(0.0f64, |m, c| m.max(c.sqrt() * y))
+            * (1.0 + 1e-9)
+            + 1e-300;
         let mut s_hi = -budget;
         // When the optimum at ν = 0 is not unique, Σx can jump at 0: a tiny ν picks the optimum with
         // the least total time, and if that one fits, the budget does not really bind.
@@ -519,16 +621,16 @@ impl DwellSolver {
         ok &= self.newton(spec, upper, probe, it);
         let s = total(self);
         if s <= 0.0 {
-            let saved = (self.vars.clone(), self.z.clone());
+            let saved = (self.vars.clone(), self.z.clone(), self.z_stale);
             ok &= self.newton(spec, upper, 0.0, it);
             if total(self) > 0.0 {
-                (self.vars, self.z) = saved;
+                (self.vars, self.z, self.z_stale) = saved;
                 self.reclassify(spec);
             }
             self.nu = 0.0;
             return ok;
         }
-        (lo, s_lo) = (probe, s);
+        let (mut lo, mut s_lo) = (probe, s);
         let mut have_hi_solution = false;
         let mut side = 0i8;
         while it.budget < MAX_BUDGET {
@@ -536,7 +638,11 @@ impl DwellSolver {
                 self.nu
             } else {
                 let r = hi - s_hi * (hi - lo) / (s_hi - s_lo);
-                if r.is_finite() && r > lo && r < hi { r } else { 0.5 * (lo + hi) }
+                if r.is_finite() && r > lo && r < hi {
+                    r
+                } else {
+                    0.5 * (lo + hi)
+                }
             };
             it.budget += 1;
             ok &= self.newton(spec, upper, nu, it);
@@ -579,14 +685,21 @@ impl DwellSolver {
         ok && it.budget < MAX_BUDGET
     }
 
-    fn solution(&self, spec: &Spec, status: Status, iterations: Iterations) -> Solution {
+    fn solution(
+        &mut self,
+        spec: &Spec,
+        status: Status,
+        iterations: Iterations,
+        predictions: bool,
+    ) -> Solution {
+        if predictions {
+            self.ensure_z();
+        }
         let x = self.vars.x.clone();
-        let n = x.len();
-        let grad: Vec<f64> = (0..n)
-            .map(|j| {
-                let s: f64 = self.gram.column(j).iter().zip(&x).map(|(a, b)| a * b).sum();
-                s - self.b[j] + 0.5 * spec.time_penalty + spec.ridge * x[j]
-            })
+        let xv = nalgebra::DVectorView::from_slice(&x, x.len());
+        let gx = &self.gram * xv;
+        let grad: Vec<f64> = (0..x.len())
+            .map(|j| gx[j] - self.b[j] + 0.5 * spec.time_penalty + spec.ridge * x[j])
             .collect();
         let scales = kkt::gradient_scales(&self.colnorm2, spec, &x);
         let report = kkt::from_gradient(&grad, &x, spec, &scales);
@@ -594,15 +707,30 @@ impl DwellSolver {
             .budget
             .unwrap_or(0.0)
             .max(x.iter().fold(0.0, |m: f64, v| m.max(*v)));
-        let band: Vec<f64> = self
-            .z
-            .iter()
-            .enumerate()
-            .map(|(i, &z)| band_distance(z, spec.lo[i], spec.hi[i]))
-            .collect();
+        let objective = if self.z_stale {
+            // xᵀGx − 2bᵀx + Σwt² + μΣx + λ‖x‖², all from cached quantities.
+            let quad: f64 = x.iter().zip(gx.iter()).map(|(a, b)| a * b).sum();
+            let lin: f64 = x.iter().zip(&self.b).map(|(a, b)| a * b).sum();
+            let total: f64 = x.iter().sum();
+            let sq: f64 = x.iter().map(|v| v * v).sum();
+            (quad - 2.0 * lin + self.yy).max(0.0) + spec.time_penalty * total + spec.ridge * sq
+        } else {
+            objective(spec, &self.z, &x)
+        };
+        let (achieved, band) = if predictions {
+            let band = self
+                .z
+                .iter()
+                .enumerate()
+                .map(|(i, &z)| band_distance(z, spec.lo[i], spec.hi[i]))
+                .collect();
+            (self.z.clone(), band)
+        } else {
+            (Vec::new(), Vec::new())
+        };
         Solution {
-            objective: objective(spec, &self.z, &x),
-            achieved: self.z.clone(),
+            objective,
+            achieved,
             band_distance: band,
             status,
             budget_multiplier: 2.0 * report.budget_multiplier,
@@ -611,6 +739,19 @@ impl DwellSolver {
             dwell: x,
         }
     }
+}
+
+/// BᵀB. Large products go through nalgebra's blocked kernel (matrixmultiply) with B viewed as Bᵀ by
+/// strides, no copy; small ones through the plain loop (nalgebra's small path wants unit strides).
+fn gram_of(b: &DMatrix<f64>) -> DMatrix<f64> {
+    let (m, n) = b.shape();
+    if m <= 5 || n <= 5 {
+        return b.tr_mul(b);
+    }
+    let mut g = DMatrix::zeros(n, n);
+    let bt = nalgebra::DMatrixView::from_slice_with_strides(b.as_slice(), n, m, m, 1);
+    g.gemm(1.0, &bt, b, 0.0);
+    g
 }
 
 fn class_target(class: Class, lo: f64, hi: f64) -> Option<f64> {
@@ -631,4 +772,3 @@ fn band_class_at(z: f64, lo: f64, hi: f64, dz: f64) -> Class {
         Class::Inside
     }
 }
-

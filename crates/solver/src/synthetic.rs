@@ -64,7 +64,8 @@ pub fn painted_tray(width: usize, height: usize, configs: usize, seed: u64) -> P
                 for c in 0..width {
                     let u = (c as f64 + 0.5) / width as f64 + px;
                     let v = (r as f64 + 0.5) / height as f64 + py;
-                    let s = (p * std::f64::consts::PI * u).sin() * (q * std::f64::consts::PI * v).sin();
+                    let s =
+                        (p * std::f64::consts::PI * u).sin() * (q * std::f64::consts::PI * v).sin();
                     col[r * width + c] += amp * s * s;
                 }
             }
@@ -73,7 +74,8 @@ pub fn painted_tray(width: usize, height: usize, configs: usize, seed: u64) -> P
         col.iter_mut().for_each(|v| *v += floor);
         columns.push(col);
     }
-    let rates = Rates::from_columns(m, &columns).expect("synthetic rates are finite and non-negative");
+    let rates =
+        Rates::from_columns(m, &columns).expect("synthetic rates are finite and non-negative");
     let target = (0..m)
         .map(|i| {
             let (r, c) = (i / width.max(1), i % width.max(1));

@@ -7,6 +7,7 @@ use traycast_solver::{DwellSolver, Rates, Spec, Status, kkt};
 /// (Values recalled from memory; SciPy 1.17 `nnls` on the same data gives x = [0, 0.6929344],
 /// ‖Cx − d‖² = 0.8314560, which confirms them.)
 #[test]
+#[allow(clippy::approx_constant)] // 0.7071 is data from the example, not 1/√2
 fn lsqnonneg_documentation_example() {
     let c = [
         0.0372, 0.2869, 0.6861, 0.7071, 0.6233, 0.6245, 0.6344, 0.6170,
@@ -17,7 +18,11 @@ fn lsqnonneg_documentation_example() {
     assert_eq!(sol.status, Status::Optimal);
     assert_eq!(sol.dwell[0], 0.0);
     assert!((sol.dwell[1] - 0.6929344).abs() < 1e-6, "{:?}", sol.dwell);
-    assert!((sol.objective - 0.8314560).abs() < 1e-6, "{}", sol.objective);
+    assert!(
+        (sol.objective - 0.8314560).abs() < 1e-6,
+        "{}",
+        sol.objective
+    );
 }
 
 /// Hand-derived: one cell, one configuration, band [lo, hi]; the optimum lands on the nearer edge's
@@ -36,7 +41,11 @@ fn single_cell_band_and_budget() {
     assert!((sol.dwell[0] - 60.0).abs() < 1e-9);
     assert!((sol.band_distance[0] + 10.0).abs() < 1e-9);
     // d/dT of 0.25·(0.5T − 40)²·... : objective (0.5T − 40)², derivative −0.5·2·(0.5·60 − 40) = 10 per second.
-    assert!((sol.budget_multiplier - 10.0).abs() < 1e-6, "{}", sol.budget_multiplier);
+    assert!(
+        (sol.budget_multiplier - 10.0).abs() < 1e-6,
+        "{}",
+        sol.budget_multiplier
+    );
 }
 
 /// Degenerate inputs that must simply work: zero columns, duplicate columns, m < n, zero targets.
@@ -63,26 +72,59 @@ fn bad_input_is_a_typed_error() {
     use traycast_solver::{Field, InputError};
     assert!(matches!(
         Rates::from_row_major(1, 2, &[0.1, f64::NAN]),
-        Err(InputError::NotFinite { field: Field::Rates, index: Some(0), config: Some(1), .. })
+        Err(InputError::NotFinite {
+            field: Field::Rates,
+            index: Some(0),
+            config: Some(1),
+            ..
+        })
     ));
     assert!(matches!(
         Rates::from_row_major(1, 2, &[0.1, -0.2]),
-        Err(InputError::NegativeRate { cell: 0, config: 1, .. })
+        Err(InputError::NegativeRate {
+            cell: 0,
+            config: 1,
+            ..
+        })
     ));
     let rates = Rates::from_row_major(2, 1, &[0.1, 0.2]).unwrap();
     let mut s = DwellSolver::new(rates);
     let mut spec = Spec::band(vec![1.0, 5.0], vec![2.0, 4.0], 1);
-    assert!(matches!(s.solve(&spec), Err(InputError::BandInverted { cell: 1, .. })));
+    assert!(matches!(
+        s.solve(&spec),
+        Err(InputError::BandInverted { cell: 1, .. })
+    ));
     spec.hi[1] = 6.0;
     spec.weights[0] = 0.0;
-    assert!(matches!(s.solve(&spec), Err(InputError::NonPositiveWeight { cell: 0, .. })));
+    assert!(matches!(
+        s.solve(&spec),
+        Err(InputError::NonPositiveWeight { cell: 0, .. })
+    ));
     spec.weights[0] = 1.0;
     spec.upper[0] = -1.0;
-    assert!(matches!(s.solve(&spec), Err(InputError::Negative { field: Field::Limits, .. })));
+    assert!(matches!(
+        s.solve(&spec),
+        Err(InputError::Negative {
+            field: Field::Limits,
+            ..
+        })
+    ));
     spec.upper[0] = f64::INFINITY;
     spec.budget = Some(f64::NAN);
-    assert!(matches!(s.solve(&spec), Err(InputError::NotFinite { field: Field::Budget, .. })));
+    assert!(matches!(
+        s.solve(&spec),
+        Err(InputError::NotFinite {
+            field: Field::Budget,
+            ..
+        })
+    ));
     spec.budget = None;
     spec.lo.pop();
-    assert!(matches!(s.solve(&spec), Err(InputError::Dimension { field: Field::Lower, .. })));
+    assert!(matches!(
+        s.solve(&spec),
+        Err(InputError::Dimension {
+            field: Field::Lower,
+            ..
+        })
+    ));
 }

@@ -1,0 +1,204 @@
+//! `traycast nnls` end to end: files in, numbers out, errors that name the place.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn scratch(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("traycast-nnls-{}-{name}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_traycast"))
+        .arg("nnls")
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8(out.stdout).unwrap(),
+        String::from_utf8(out.stderr).unwrap(),
+    )
+}
+
+fn fmt(v: &serde_json::Value) -> String {
+    match v {
+        serde_json::Value::String(s) => s.clone(),
+        other => other.to_string(),
+    }
+}
+
+/// Every SciPy fixture case through the command line (see crates/solver/tests/scipy_reference.rs for
+/// the fixture's provenance: SciPy 1.17.1 nnls / lsq_linear bvls, recorded in the file).
+#[test]
+fn agrees_with_scipy_fixtures() {
+    let text = include_str!("../../../tests/fixtures/solver/scipy_reference.json");
+    let fixture: serde_json::Value = serde_json::from_str(text).unwrap();
+    let dir = scratch("scipy");
+    for case in fixture["cases"].as_array().unwrap() {
+        let (m, n) = (
+            case["m"].as_u64().unwrap() as usize,
+            case["n"].as_u64().unwrap() as usize,
+        );
+        let a: Vec<f64> = case["rates_row_major"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        let rows: Vec<String> = (0..m)
+            .map(|i| {
+                a[i * n..(i + 1) * n]
+                    .iter()
+                    .map(|v| format!("{v:e}"))
+                    .collect::<Vec<_>>()
+                    .join(",")
+            })
+            .collect();
+        let write = |name: &str, lines: Vec<String>| {
+            let p = dir.join(name);
+            std::fs::write(&p, lines.join("\n") + "\n").unwrap();
+            p.to_str().unwrap().to_string()
+        };
+        let col = |key: &str| {
+            case[key]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(fmt)
+                .collect::<Vec<_>>()
+        };
+        let ra = write("A.csv", rows);
+        let lo = write("lo.csv", col("lo"));
+        let hi = write("hi.csv", col("hi"));
+        let w = write("w.csv", col("weights"));
+        let u = write("u.csv", col("upper"));
+        let (code, out, err) = run(&[
+            "--rates",
+            &ra,
+            "--lo",
+            &lo,
+            "--hi",
+            &hi,
+            "--weights",
+            &w,
+            "--upper",
+            &u,
+            "--format",
+            "json",
+        ]);
+        assert_eq!(code, 0, "{err}");
+        let got: serde_json::Value = serde_json::from_str(&out).unwrap();
+        let ours = got["objective"].as_f64().unwrap();
+        let theirs = case["objective"].as_f64().unwrap();
+        let scale = 1.0 + theirs.abs();
+        assert!(
+            ours <= theirs + 1e-7 * scale,
+            "{}: ours {ours} scipy {theirs}",
+            case["name"]
+        );
+        assert!(
+            theirs - ours <= 1e-4 * scale,
+            "{}: ours {ours} scipy {theirs}",
+            case["name"]
+        );
+        assert_eq!(got["x"].as_array().unwrap().len(), n);
+        assert!(got["kkt_residual"].as_f64().unwrap() < 1e-6);
+    }
+}
+
+#[test]
+fn lines_output_has_ten_significant_digits_and_json_has_the_documented_fields() {
+    let dir = scratch("format");
+    // MathWorks lsqnonneg documentation example (see crates/solver/tests/worked_examples.rs).
+    std::fs::write(
+        dir.join("A.csv"),
+        "0.0372,0.2869\n0.6861,0.7071\n0.6233,0.6245\n0.6344,0.6170\n",
+    )
+    .unwrap();
+    std::fs::write(dir.join("y.csv"), "0.8587\n0.1781\n0.0747\n0.8405\n").unwrap();
+    let a = dir.join("A.csv");
+    let y = dir.join("y.csv");
+    let (code, out, _) = run(&[
+        "--rates",
+        a.to_str().unwrap(),
+        "--target",
+        y.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0);
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(lines.len(), 2);
+    let mantissa = lines[1].split('e').next().unwrap().replace(['.', '-'], "");
+    assert!(mantissa.len() >= 10, "{}", lines[1]);
+    assert!((lines[1].parse::<f64>().unwrap() - 0.6929344).abs() < 1e-6);
+    let (_, out, _) = run(&[
+        "--rates",
+        a.to_str().unwrap(),
+        "--target",
+        y.to_str().unwrap(),
+        "--format",
+        "json",
+        "--repeat",
+        "3",
+    ]);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    for key in [
+        "x",
+        "objective",
+        "status",
+        "iterations",
+        "kkt_residual",
+        "solve_seconds_median",
+    ] {
+        assert!(v.get(key).is_some(), "missing {key}");
+    }
+    assert_eq!(v["status"], "optimal");
+}
+
+#[test]
+fn bad_files_exit_2_naming_file_line_and_column() {
+    let dir = scratch("errors");
+    let put = |name: &str, text: &str| {
+        let p = dir.join(name);
+        std::fs::write(&p, text).unwrap();
+        p.to_str().unwrap().to_string()
+    };
+    let good = put("good.csv", "0.1,0.2\n0.3,0.4\n");
+    let y = put("y.csv", "10\n20\n");
+    let nan = put("nan.csv", "0.1,0.2\n0.3,NaN\n");
+    let neg = put("neg.csv", "0.1,-0.2\n0.3,0.4\n");
+    let ragged = put("ragged.csv", "0.1,0.2\n0.3\n");
+    let short = put("short.csv", "10\n");
+    let lo = put("lo.csv", "5\n30\n");
+    let hi = put("hi.csv", "6\n20\n");
+    let u = put("u.csv", "1\n-1\n");
+    let cases: [(Vec<&str>, &str); 7] = [
+        (vec!["--rates", &nan, "--target", &y], "nan.csv:2:2:"),
+        (vec!["--rates", &neg, "--target", &y], "neg.csv:1:2:"),
+        (vec!["--rates", &ragged, "--target", &y], "ragged.csv:2:"),
+        (
+            vec!["--rates", &good, "--target", &short],
+            "short.csv: has 1 lines",
+        ),
+        (
+            vec!["--rates", &good, "--lo", &lo, "--hi", &hi],
+            "lo.csv:2:",
+        ),
+        (
+            vec!["--rates", &good, "--target", &y, "--upper", &u],
+            "u.csv:2:",
+        ),
+        (
+            vec!["--rates", &good, "--target", &y, "--budget", "-3"],
+            "--budget",
+        ),
+    ];
+    for (args, expect) in cases {
+        let (code, out, err) = run(&args);
+        assert_eq!(code, 2, "{args:?}");
+        assert!(out.is_empty());
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(expect), "{err} should contain {expect}");
+    }
+}
