@@ -25,8 +25,8 @@ impl Kkt {
 }
 
 /// Natural size of each gradient component: ‖a_j‖_W·‖targets‖_W + μ/2 + λ·x_j, floored above zero.
-pub(crate) fn gradient_scales(colnorm2: &[f64], spec: &Spec, x: &[f64]) -> Vec<f64> {
-    let y = target_scale(spec);
+/// `y` is [`target_scale`] of `spec`, passed in so callers that solve repeatedly compute it once.
+pub(crate) fn gradient_scales(colnorm2: &[f64], y: f64, spec: &Spec, x: &[f64]) -> Vec<f64> {
     colnorm2
         .iter()
         .zip(x)
@@ -128,5 +128,10 @@ pub fn check(rates: &Rates, spec: &Spec, x: &[f64]) -> Kkt {
                 .sum()
         })
         .collect();
-    from_gradient(&grad, x, spec, &gradient_scales(&colnorm2, spec, x))
+    from_gradient(
+        &grad,
+        x,
+        spec,
+        &gradient_scales(&colnorm2, target_scale(spec), spec, x),
+    )
 }

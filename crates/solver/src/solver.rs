@@ -90,6 +90,8 @@ pub struct DwellSolver {
     b: Vec<f64>,
     /// Σ w·t² over the active cells: the objective's constant, so it can be evaluated from the Gram.
     yy: f64,
+    /// [`kkt::target_scale`] of the current spec.
+    y_scale: f64,
     colnorm2: Vec<f64>,
     z: Vec<f64>,
     /// True when x moved without z following (point-target solves defer A·x to the end).
@@ -111,6 +113,7 @@ impl DwellSolver {
             gram: DMatrix::zeros(n, n),
             b: vec![0.0; n],
             yy: 0.0,
+            y_scale: 0.0,
             colnorm2: vec![0.0; n],
             z: vec![0.0; m],
             z_stale: false,
@@ -263,6 +266,7 @@ impl DwellSolver {
         let Some(old) = self.spec.take() else {
             self.rebuild(spec);
             self.spec = Some(spec.clone());
+            self.y_scale = kkt::target_scale(spec);
             return;
         };
         let n = self.rates.configs();
@@ -293,7 +297,11 @@ impl DwellSolver {
             changes.push(Change::between(i, before, after));
         }
         self.apply_changes(&changes, spec);
-        self.spec = Some(spec.clone());
+        // Keep our copy without reallocating (the common case: same sizes).
+        let mut kept = old;
+        kept.clone_from(spec);
+        self.spec = Some(kept);
+        self.y_scale = kkt::target_scale(spec);
     }
 
     /// Builds the Gram matrix and b of the active cells from scratch.
@@ -478,10 +486,11 @@ impl DwellSolver {
         let max_active = 50 * n + 200;
         loop {
             let c = self.linear_term(spec, nu);
-            let tol: Vec<f64> = kkt::gradient_scales(&self.colnorm2, spec, &self.vars.x)
-                .into_iter()
-                .map(|s| s * KKT_TOL)
-                .collect();
+            let tol: Vec<f64> =
+                kkt::gradient_scales(&self.colnorm2, self.y_scale, spec, &self.vars.x)
+                    .into_iter()
+                    .map(|s| s * KKT_TOL)
+                    .collect();
             let quad = Quad {
                 gram: &self.gram,
                 ridge: spec.ridge,
@@ -617,7 +626,7 @@ impl DwellSolver {
         let total = |s: &Self| s.vars.x.iter().sum::<f64>() - budget;
         let mut ok = true;
         // At ν ≥ max_j ‖a_j‖·‖t‖ + |μ| every gradient is non-negative at x = 0 (Cauchy–Schwarz), so Σx(ν) = 0.
-        let y = kkt::target_scale(spec);
+        let y = self.y_scale;
         let mut hi = self
             .colnorm2
             .iter()
@@ -714,7 +723,7 @@ impl DwellSolver {
         let grad: Vec<f64> = (0..x.len())
             .map(|j| gx[j] - self.b[j] + 0.5 * spec.time_penalty + spec.ridge * x[j])
             .collect();
-        let scales = kkt::gradient_scales(&self.colnorm2, spec, &x);
+        let scales = kkt::gradient_scales(&self.colnorm2, self.y_scale, spec, &x);
         let report = kkt::from_gradient(&grad, &x, spec, &scales);
         let time_scale = spec
             .budget

@@ -32,20 +32,22 @@ fn field(json: &str, key: &str) -> Result<f64, String> {
 fn criterion_median(id: &str) -> Option<f64> {
     let path = root()
         .join("target/criterion/solver")
-        .join(id)
+        .join(id.replace('/', "_"))
         .join("new/estimates.json");
     let text = std::fs::read_to_string(path).ok()?;
     let v: serde_json::Value = serde_json::from_str(&text).ok()?;
     v["median"]["point_estimate"].as_f64()
 }
 
-/// Runs everything and prints the table.
-pub fn solver() -> Result<(), String> {
+/// Runs everything and prints the table; `reuse` skips criterion and reads its last results.
+pub fn solver(reuse: bool) -> Result<(), String> {
     let root = root();
     std::env::set_current_dir(&root).map_err(|e| e.to_string())?;
     ensure_python_module("scipy", "scipy>=1.16")?;
     cargo(&["build", "--release", "--package", "traycast-cli"])?;
-    cargo(&["bench", "--package", "traycast-solver", "--bench", "solver"])?;
+    if !reuse {
+        cargo(&["bench", "--package", "traycast-solver", "--bench", "solver"])?;
+    }
     let exe = root.join("target/release/traycast");
     let dir = root.join("target/bench-solver");
     std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;

@@ -14,6 +14,7 @@ const USAGE: &str = "usage: cargo xtask <command>
 commands:
   test           fmt check, clippy (warnings are errors), wasm32 build of the leaf crates, all tests
   bench-solver   criterion benchmarks of the dwell solver, plus SciPy's nnls side by side
+                 (--reuse: skip criterion, read its last results)
   serve          start the workbench on the built-in demo (not built yet: prints what exists)";
 
 /// Library crates that must build for wasm32-unknown-unknown (no I/O, no browser knowledge).
@@ -23,7 +24,7 @@ fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let result = match args.first().map(String::as_str) {
         Some("test") => test(),
-        Some("bench-solver") => bench::solver(),
+        Some("bench-solver") => bench::solver(args.iter().any(|a| a == "--reuse")),
         Some("serve") => serve(),
         _ => {
             eprintln!("{USAGE}");
