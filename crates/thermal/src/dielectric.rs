@@ -1,0 +1,86 @@
+//! Dielectric loss classes at 2.45 GHz: how strongly a food absorbs when thawed and when frozen.
+//!
+//! Values (ε′ / ε″) are published measurements, quoted in shared/reference/physics.md §3.3:
+//! beef, Bengtsson & Risman (1971) at 2.8 GHz (0 °C 47.8/16.5, −20 °C 4/1), via the review table in
+//! J Food Sci Technol 48(4):387–411 (2011); fruits and vegetables, Datta & Ramaswamy (2001) at room
+//! temperature; ham at −10 °C, Sipahioglu et al. (2003) 7/3. Fats and oils: ε′ ≈ 2.5, ε″ ≈ 0.15 at
+//! 25 °C (Pace, Westphal & Goldblith 1968 — typical values recalled from memory, unconfirmed).
+//! Frozen vegetables have no measured value in those sources; we assume the beef ratio (about 1/16).
+
+/// How a food absorbs microwave power.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum LossClass {
+    /// Meat, poultry, fish: high loss thawed, brine-dominated when frozen.
+    Meat,
+    /// Vegetables, fruit, cooked starches: watery.
+    Watery,
+    /// Cured or salted foods: ionic loss, higher when frozen than meat.
+    Salty,
+    /// Fat-dominated foods: low loss.
+    Fatty,
+}
+
+/// Loss factors of a class.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LossFactors {
+    /// ε″ thawed, near 0–20 °C.
+    pub thawed: f64,
+    /// ε″ fully frozen (around −20 °C).
+    pub frozen: f64,
+}
+
+impl LossClass {
+    /// Every class.
+    pub const ALL: [LossClass; 4] = [
+        LossClass::Meat,
+        LossClass::Watery,
+        LossClass::Salty,
+        LossClass::Fatty,
+    ];
+
+    /// The class's loss factors.
+    pub fn factors(self) -> LossFactors {
+        match self {
+            LossClass::Meat => LossFactors {
+                thawed: 16.5,
+                frozen: 1.0,
+            },
+            // Carrot 15, potato 17 (Datta & Ramaswamy 2001); frozen assumed at the beef ratio.
+            LossClass::Watery => LossFactors {
+                thawed: 15.0,
+                frozen: 15.0 / 16.5,
+            },
+            // Ham −10 °C: 3 (Sipahioglu et al. 2003); thawed taken as beef at +5 °C, 17.5 (To et al. 1974).
+            LossClass::Salty => LossFactors {
+                thawed: 17.5,
+                frozen: 3.0,
+            },
+            LossClass::Fatty => LossFactors {
+                thawed: 0.15,
+                frozen: 0.15,
+            },
+        }
+    }
+
+    /// Absorption relative to the thawed state, for a fraction `unfrozen` (0…1) of the freezable
+    /// water liquid: loss interpolated linearly between frozen and thawed.
+    pub fn absorption_ratio(self, unfrozen: f64) -> f64 {
+        let f = self.factors();
+        (f.frozen + (f.thawed - f.frozen) * unfrozen.clamp(0.0, 1.0)) / f.thawed
+    }
+
+    /// Short lower-case name, used in files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            LossClass::Meat => "meat",
+            LossClass::Watery => "watery",
+            LossClass::Salty => "salty",
+            LossClass::Fatty => "fatty",
+        }
+    }
+
+    /// Parses [`LossClass::as_str`].
+    pub fn parse(s: &str) -> Option<Self> {
+        Self::ALL.into_iter().find(|c| c.as_str() == s)
+    }
+}

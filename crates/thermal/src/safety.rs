@@ -1,0 +1,305 @@
+//! Food-safety rules as data, with their sources, and the coldest-cell verdict.
+//!
+//! Sources (transcribed in shared/reference/physics.md §2):
+//! - USDA FSIS / FoodSafety.gov "Safe Minimum Internal Temperatures" consumer chart; °C by FSIS's
+//!   rule °C = (°F − 32)·5/9 to one decimal.
+//! - FDA Food Code (2009/2013/2017 editions, section numbers as confirmed through state adoptions):
+//!   3-401.11 cooking, 3-401.12 microwave cooking, 3-403.11 reheating, 3-501.16 holding.
+//!
+//! These are planning aids. Local food codes and licensed practice govern; verify with a calibrated
+//! thermometer.
+
+/// A row of the USDA FSIS safe minimum internal temperature chart.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct FsisRow {
+    /// The food as the chart names it.
+    pub food: &'static str,
+    /// Minimum internal temperature, °F.
+    pub fahrenheit: f64,
+    /// The same in °C as FSIS converts it (one decimal).
+    pub celsius: f64,
+    /// Rest time after cooking, minutes (0 when none is listed).
+    pub rest_minutes: f64,
+}
+
+/// The FSIS chart rows with a temperature (seafood judged by appearance is not listed).
+pub const FSIS_CHART: [FsisRow; 8] = [
+    FsisRow {
+        food: "Beef, veal, lamb steaks, roasts, chops",
+        fahrenheit: 145.0,
+        celsius: 62.8,
+        rest_minutes: 3.0,
+    },
+    FsisRow {
+        food: "Fresh pork, including fresh ham",
+        fahrenheit: 145.0,
+        celsius: 62.8,
+        rest_minutes: 3.0,
+    },
+    FsisRow {
+        food: "Ground meat and mixtures (beef, pork, veal, lamb)",
+        fahrenheit: 160.0,
+        celsius: 71.1,
+        rest_minutes: 0.0,
+    },
+    FsisRow {
+        food: "All poultry (whole, parts, ground, giblets, stuffing)",
+        fahrenheit: 165.0,
+        celsius: 73.9,
+        rest_minutes: 0.0,
+    },
+    FsisRow {
+        food: "Egg dishes (frittata, quiche)",
+        fahrenheit: 160.0,
+        celsius: 71.1,
+        rest_minutes: 0.0,
+    },
+    FsisRow {
+        food: "Leftovers and casseroles",
+        fahrenheit: 165.0,
+        celsius: 73.9,
+        rest_minutes: 0.0,
+    },
+    FsisRow {
+        food: "Fin fish",
+        fahrenheit: 145.0,
+        celsius: 62.8,
+        rest_minutes: 0.0,
+    },
+    FsisRow {
+        food: "Precooked ham, reheating",
+        fahrenheit: 165.0,
+        celsius: 73.9,
+        rest_minutes: 0.0,
+    },
+];
+
+/// A rule of the FDA Food Code.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct CodeRule {
+    /// Section number.
+    pub section: &'static str,
+    /// What the rule requires, briefly.
+    pub summary: &'static str,
+    /// Temperature limit, °C.
+    pub celsius: f64,
+    /// The same, °F.
+    pub fahrenheit: f64,
+    /// True for a minimum ("at least"), false for a maximum ("at most").
+    pub minimum: bool,
+    /// Required covered standing time after microwave heating, s (0 when none).
+    pub stand_seconds: f64,
+}
+
+/// FDA Food Code: microwave cooking of raw animal foods (all parts 74 °C, stand covered 2 min).
+pub const FDA_MICROWAVE_COOKING: CodeRule = CodeRule {
+    section: "3-401.12",
+    summary: "raw animal foods cooked in a microwave: rotate or stir, cover, reach 74 °C (165 °F) in all parts, stand covered 2 minutes",
+    celsius: 74.0,
+    fahrenheit: 165.0,
+    minimum: true,
+    stand_seconds: 120.0,
+};
+/// FDA Food Code: reheating for hot holding in a microwave (all parts 74 °C, stand covered 2 min).
+pub const FDA_MICROWAVE_REHEATING: CodeRule = CodeRule {
+    section: "3-403.11(B)",
+    summary: "food reheated in a microwave for hot holding: all parts at least 74 °C (165 °F), rotate or stir, cover, stand covered 2 minutes",
+    celsius: 74.0,
+    fahrenheit: 165.0,
+    minimum: true,
+    stand_seconds: 120.0,
+};
+/// FDA Food Code: commercially processed ready-to-eat food reheated for hot holding.
+pub const FDA_RTE_REHEATING: CodeRule = CodeRule {
+    section: "3-403.11(C)",
+    summary: "commercially processed, packaged ready-to-eat food reheated for hot holding: at least 57 °C (135 °F)",
+    celsius: 57.0,
+    fahrenheit: 135.0,
+    minimum: true,
+    stand_seconds: 0.0,
+};
+/// FDA Food Code: hot holding of TCS food.
+pub const FDA_HOT_HOLDING: CodeRule = CodeRule {
+    section: "3-501.16(A)(1)",
+    summary: "hot holding of time/temperature control for safety food: 57 °C (135 °F) or above",
+    celsius: 57.0,
+    fahrenheit: 135.0,
+    minimum: true,
+    stand_seconds: 0.0,
+};
+/// FDA Food Code: cold holding of TCS food.
+pub const FDA_COLD_HOLDING: CodeRule = CodeRule {
+    section: "3-501.16(A)(2)",
+    summary: "cold holding of time/temperature control for safety food: 5 °C (41 °F) or less",
+    celsius: 5.0,
+    fahrenheit: 41.0,
+    minimum: false,
+    stand_seconds: 0.0,
+};
+
+/// What kind of food a safety judgement applies to.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum SafetyCategory {
+    /// Poultry (FSIS 165 °F; cooked raw in a microwave, FDA 3-401.12).
+    Poultry,
+    /// Ground meat and mixtures (FSIS 160 °F; FDA 3-401.12 when raw).
+    GroundMeat,
+    /// Whole cuts of beef, veal, lamb, fresh pork (FSIS 145 °F + 3 min rest; FDA 3-401.12 when raw).
+    WholeMeat,
+    /// Fin fish (FSIS 145 °F; FDA 3-401.12 when raw).
+    Fish,
+    /// Egg dishes (FSIS 160 °F; FDA 3-401.12 when raw).
+    EggDish,
+    /// Leftovers, casseroles, cooked-and-cooled meals reheated (FSIS 165 °F; FDA 3-403.11(B)).
+    Reheated,
+    /// Precooked ham reheated (FSIS 165 °F; 140 °F if packaged in a USDA-inspected plant).
+    PrecookedHam,
+    /// Plant foods and starches served hot: hold at 57 °C or above (FDA 3-501.16).
+    ServedHot,
+    /// Chilled items that must stay cold (FDA 3-501.16 cold holding, a maximum).
+    KeepCold,
+}
+
+/// One requirement a food item's temperatures are judged against.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Requirement {
+    /// Where it comes from (for display).
+    pub source: String,
+    /// Limit, °C.
+    pub celsius: f64,
+    /// True: the coldest cell must be at least this; false: the warmest cell at most this.
+    pub minimum: bool,
+    /// Standing or rest time the rule assumes, s.
+    pub stand_seconds: f64,
+}
+
+fn fsis(row: usize) -> Requirement {
+    let r = FSIS_CHART[row];
+    Requirement {
+        source: format!("USDA FSIS chart: {} {} °F", r.food, r.fahrenheit),
+        celsius: r.celsius,
+        minimum: true,
+        stand_seconds: r.rest_minutes * 60.0,
+    }
+}
+
+fn code(rule: CodeRule) -> Requirement {
+    Requirement {
+        source: format!("FDA Food Code {}", rule.section),
+        celsius: rule.celsius,
+        minimum: rule.minimum,
+        stand_seconds: rule.stand_seconds,
+    }
+}
+
+impl SafetyCategory {
+    /// Every category.
+    pub const ALL: [SafetyCategory; 9] = [
+        SafetyCategory::Poultry,
+        SafetyCategory::GroundMeat,
+        SafetyCategory::WholeMeat,
+        SafetyCategory::Fish,
+        SafetyCategory::EggDish,
+        SafetyCategory::Reheated,
+        SafetyCategory::PrecookedHam,
+        SafetyCategory::ServedHot,
+        SafetyCategory::KeepCold,
+    ];
+
+    /// The requirements for this category when heated in a microwave; the verdict needs all.
+    pub fn requirements(self) -> Vec<Requirement> {
+        match self {
+            SafetyCategory::Poultry => vec![fsis(3), code(FDA_MICROWAVE_COOKING)],
+            SafetyCategory::GroundMeat => vec![fsis(2), code(FDA_MICROWAVE_COOKING)],
+            SafetyCategory::WholeMeat => vec![fsis(0), code(FDA_MICROWAVE_COOKING)],
+            SafetyCategory::Fish => vec![fsis(6), code(FDA_MICROWAVE_COOKING)],
+            SafetyCategory::EggDish => vec![fsis(4), code(FDA_MICROWAVE_COOKING)],
+            SafetyCategory::Reheated => vec![fsis(5), code(FDA_MICROWAVE_REHEATING)],
+            SafetyCategory::PrecookedHam => vec![fsis(7)],
+            SafetyCategory::ServedHot => vec![code(FDA_HOT_HOLDING)],
+            SafetyCategory::KeepCold => vec![code(FDA_COLD_HOLDING)],
+        }
+    }
+
+    /// Short lower-case name, used in files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            SafetyCategory::Poultry => "poultry",
+            SafetyCategory::GroundMeat => "ground-meat",
+            SafetyCategory::WholeMeat => "whole-meat",
+            SafetyCategory::Fish => "fish",
+            SafetyCategory::EggDish => "egg-dish",
+            SafetyCategory::Reheated => "reheated",
+            SafetyCategory::PrecookedHam => "precooked-ham",
+            SafetyCategory::ServedHot => "served-hot",
+            SafetyCategory::KeepCold => "keep-cold",
+        }
+    }
+
+    /// Parses [`SafetyCategory::as_str`].
+    pub fn parse(s: &str) -> Option<Self> {
+        Self::ALL.into_iter().find(|c| c.as_str() == s)
+    }
+}
+
+/// The coldest-cell verdict for one food item.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Verdict {
+    /// True when every requirement holds.
+    pub safe: bool,
+    /// The requirement with the smallest margin.
+    pub binding: Requirement,
+    /// Margin against it, K: coldest − limit for a minimum, limit − warmest for a maximum.
+    pub margin: f64,
+    /// Coldest cell after standing, °C.
+    pub coldest: f64,
+    /// Warmest cell after standing, °C.
+    pub warmest: f64,
+    /// True when the simulated standing time is shorter than a rule assumes.
+    pub short_stand: bool,
+}
+
+/// Judges an item from its cells' temperatures after standing (°C) and the standing time simulated.
+pub fn verdict(category: SafetyCategory, after_standing: &[f64], stood_seconds: f64) -> Verdict {
+    let coldest = after_standing.iter().copied().fold(f64::INFINITY, f64::min);
+    let warmest = after_standing
+        .iter()
+        .copied()
+        .fold(f64::NEG_INFINITY, f64::max);
+    let reqs = category.requirements();
+    let margin_of = |r: &Requirement| {
+        if r.minimum {
+            coldest - r.celsius
+        } else {
+            r.celsius - warmest
+        }
+    };
+    let binding = reqs
+        .iter()
+        .min_by(|a, b| margin_of(a).total_cmp(&margin_of(b)))
+        .expect("every category has a requirement")
+        .clone();
+    let margin = margin_of(&binding);
+    Verdict {
+        safe: margin >= 0.0 && margin.is_finite(),
+        short_stand: reqs.iter().any(|r| r.stand_seconds > stood_seconds),
+        binding,
+        margin,
+        coldest,
+        warmest,
+    }
+}
+
+/// The usual cautions, shown wherever a plan is shown or exported.
+pub const CAUTIONS: [&str; 5] = [
+    "Predicted temperatures are estimates from a model, not measurements.",
+    "Microwave heating is uneven: cold spots can survive even when the average looks done.",
+    "Check the coldest part of each food, usually the thickest or centre, with a calibrated thermometer.",
+    "Let food stand covered after heating (the FDA Food Code asks for 2 minutes) before checking and serving.",
+    "Follow your local food code and licensed practice; they take precedence over this plan.",
+];
+
+/// Converts °F to °C the way the FSIS chart does (one decimal).
+pub fn fsis_celsius(fahrenheit: f64) -> f64 {
+    ((fahrenheit - 32.0) * 5.0 / 9.0 * 10.0).round() / 10.0
+}

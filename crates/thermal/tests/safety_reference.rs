@@ -1,0 +1,100 @@
+//! Food-safety tables reproduced from their sources (shared/reference/physics.md §2), and verdicts.
+
+use traycast_thermal::safety::*;
+
+/// USDA FSIS safe minimum internal temperature chart: °F as printed, °C by FSIS's own conversion
+/// (°F − 32)·5/9 to one decimal; rest times as printed (3 min for whole cuts and fresh pork).
+#[test]
+fn fsis_chart_matches_the_source() {
+    let expected = [
+        ("Beef, veal, lamb steaks, roasts, chops", 145.0, 62.8, 3.0),
+        ("Fresh pork, including fresh ham", 145.0, 62.8, 3.0),
+        (
+            "Ground meat and mixtures (beef, pork, veal, lamb)",
+            160.0,
+            71.1,
+            0.0,
+        ),
+        (
+            "All poultry (whole, parts, ground, giblets, stuffing)",
+            165.0,
+            73.9,
+            0.0,
+        ),
+        ("Egg dishes (frittata, quiche)", 160.0, 71.1, 0.0),
+        ("Leftovers and casseroles", 165.0, 73.9, 0.0),
+        ("Fin fish", 145.0, 62.8, 0.0),
+        ("Precooked ham, reheating", 165.0, 73.9, 0.0),
+    ];
+    assert_eq!(FSIS_CHART.len(), expected.len());
+    for (row, (food, f, c, rest)) in FSIS_CHART.iter().zip(expected) {
+        assert_eq!(row.food, food);
+        assert_eq!(row.fahrenheit, f);
+        assert_eq!(row.celsius, c);
+        assert_eq!(row.rest_minutes, rest);
+        assert_eq!(fsis_celsius(row.fahrenheit), row.celsius, "{food}");
+    }
+}
+
+/// FDA Food Code sections 3-401.12, 3-403.11(B)/(C), 3-501.16(A): the °C values as the code prints
+/// them (whole degrees) match their °F within half a degree; microwave rules require a 2-minute
+/// covered stand.
+#[test]
+fn food_code_rules_match_the_source() {
+    let rules = [
+        (FDA_MICROWAVE_COOKING, "3-401.12", 74.0, 165.0, true, 120.0),
+        (
+            FDA_MICROWAVE_REHEATING,
+            "3-403.11(B)",
+            74.0,
+            165.0,
+            true,
+            120.0,
+        ),
+        (FDA_RTE_REHEATING, "3-403.11(C)", 57.0, 135.0, true, 0.0),
+        (FDA_HOT_HOLDING, "3-501.16(A)(1)", 57.0, 135.0, true, 0.0),
+        (FDA_COLD_HOLDING, "3-501.16(A)(2)", 5.0, 41.0, false, 0.0),
+    ];
+    for (rule, section, c, f, minimum, stand) in rules {
+        assert_eq!(rule.section, section);
+        assert_eq!(
+            (
+                rule.celsius,
+                rule.fahrenheit,
+                rule.minimum,
+                rule.stand_seconds
+            ),
+            (c, f, minimum, stand)
+        );
+        assert!(
+            ((rule.fahrenheit - 32.0) * 5.0 / 9.0 - rule.celsius).abs() < 0.5,
+            "{section}"
+        );
+    }
+}
+
+#[test]
+fn verdict_is_judged_on_the_coldest_cell_with_its_margin() {
+    // Poultry in a microwave: FSIS 73.9 °C and FDA 3-401.12 74 °C; the stricter binds.
+    let v = verdict(SafetyCategory::Poultry, &[80.0, 75.0, 90.0], 120.0);
+    assert!(v.safe);
+    assert_eq!(v.coldest, 75.0);
+    assert!((v.margin - 1.0).abs() < 1e-12);
+    assert!(v.binding.source.contains("3-401.12"));
+    assert!(!v.short_stand);
+    let v = verdict(SafetyCategory::Poultry, &[80.0, 73.0], 60.0);
+    assert!(!v.safe);
+    assert!((v.margin + 1.0).abs() < 1e-12);
+    assert!(v.short_stand, "60 s is shorter than the 2-minute stand");
+    // A chilled dessert is judged on its warmest cell against cold holding, 5 °C.
+    let v = verdict(SafetyCategory::KeepCold, &[3.0, 6.0], 120.0);
+    assert!(!v.safe);
+    assert!((v.margin + 1.0).abs() < 1e-12);
+    // Whole meat: FSIS 62.8 °C, but microwave-cooked raw animal food needs 74 °C (FDA 3-401.12).
+    let v = verdict(SafetyCategory::WholeMeat, &[70.0], 180.0);
+    assert!(!v.safe);
+    for c in SafetyCategory::ALL {
+        assert_eq!(SafetyCategory::parse(c.as_str()), Some(c));
+    }
+    assert!(CAUTIONS.iter().any(|c| c.contains("thermometer")));
+}
