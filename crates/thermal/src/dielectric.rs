@@ -20,13 +20,17 @@ pub enum LossClass {
     Fatty,
 }
 
-/// Loss factors of a class.
+/// Loss factors (ε″) and dielectric constants (ε′) of a class.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct LossFactors {
     /// ε″ thawed, near 0–20 °C.
     pub thawed: f64,
     /// ε″ fully frozen (around −20 °C).
     pub frozen: f64,
+    /// ε′ thawed.
+    pub constant_thawed: f64,
+    /// ε′ frozen.
+    pub constant_frozen: f64,
 }
 
 impl LossClass {
@@ -41,23 +45,32 @@ impl LossClass {
     /// The class's loss factors.
     pub fn factors(self) -> LossFactors {
         match self {
+            // Beef 0 °C 47.8/16.5, −20 °C 4/1 (Bengtsson & Risman 1971).
             LossClass::Meat => LossFactors {
                 thawed: 16.5,
                 frozen: 1.0,
+                constant_thawed: 47.8,
+                constant_frozen: 4.0,
             },
-            // Carrot 15, potato 17 (Datta & Ramaswamy 2001); frozen assumed at the beef ratio.
+            // Carrot 56/15 (Datta & Ramaswamy 2001); frozen assumed at the beef values' ratios.
             LossClass::Watery => LossFactors {
                 thawed: 15.0,
                 frozen: 15.0 / 16.5,
+                constant_thawed: 56.0,
+                constant_frozen: 4.7,
             },
-            // Ham −10 °C: 3 (Sipahioglu et al. 2003); thawed taken as beef at +5 °C, 17.5 (To et al. 1974).
+            // Ham −10 °C: 7/3 (Sipahioglu et al. 2003); thawed taken as beef at +5 °C, 52.5/17.5 (To et al. 1974).
             LossClass::Salty => LossFactors {
                 thawed: 17.5,
                 frozen: 3.0,
+                constant_thawed: 52.5,
+                constant_frozen: 7.0,
             },
             LossClass::Fatty => LossFactors {
                 thawed: 0.15,
                 frozen: 0.15,
+                constant_thawed: 2.5,
+                constant_frozen: 2.5,
             },
         }
     }

@@ -18,7 +18,7 @@ commands:
   serve          start the workbench on the built-in demo (not built yet: prints what exists)";
 
 /// Library crates that must build for wasm32-unknown-unknown (no I/O, no browser knowledge).
-pub const WASM_CRATES: &[&str] = &["traycast-solver", "traycast-thermal"];
+pub const WASM_CRATES: &[&str] = &["traycast-solver", "traycast-thermal", "traycast-plan"];
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();

@@ -1,0 +1,125 @@
+//! Demo scenarios of our own. All illustrative: invented trays, the synthetic field model, no real
+//! product or measurement behind them.
+
+use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
+
+/// Names of the demos, in the order `traycast demo` lists them.
+pub const DEMOS: [&str; 3] = ["lunch-tray", "frozen-portion", "side-by-side"];
+
+fn paint(
+    plan: &mut Plan,
+    item: u8,
+    zone: u8,
+    cols: std::ops::Range<usize>,
+    rows: std::ops::Range<usize>,
+) {
+    let w = plan.tray.width;
+    for r in rows {
+        for c in cols.clone() {
+            plan.food[r * w + c] = item;
+            plan.zone[r * w + c] = zone;
+        }
+    }
+}
+
+fn base(name: &str, width: usize, height: usize, cell_mm: f64, seed: u64) -> Plan {
+    let n = width * height;
+    Plan {
+        name: name.into(),
+        tray: TraySize {
+            width,
+            height,
+            cell_mm,
+        },
+        items: vec![],
+        food: vec![0; n],
+        zones: vec![],
+        zone: vec![0; n],
+        oven: Oven {
+            configs: 48,
+            budget_s: Some(360.0),
+            sequencing: Sequencing::Rounds(4),
+            ..Oven::default()
+        },
+        maps: MapSource::Synthetic { seed },
+    }
+}
+
+fn item(name: &str, food: &str, thickness_mm: f64, start_c: f64) -> FoodItem {
+    FoodItem {
+        name: name.into(),
+        food: food.into(),
+        thickness_mm,
+        start_c,
+    }
+}
+
+fn zone(name: &str, min_c: f64, max_c: f64, weight: f64, cap_c: Option<f64>) -> Zone {
+    Zone {
+        name: name.into(),
+        min_c,
+        max_c,
+        weight,
+        cap_c,
+    }
+}
+
+/// A demo plan by name.
+pub fn demo(name: &str) -> Option<Plan> {
+    Some(match name {
+        "lunch-tray" => {
+            // Four compartments on a 28 × 18 cm tray: chicken that must reach its safe minimum,
+            // rice, broccoli, and a chilled pudding that must stay cold.
+            let mut p = base("Lunch tray (illustrative)", 28, 18, 10.0, 7);
+            p.items = vec![
+                item("Chicken breast", "chicken-breast", 20.0, 4.0),
+                item("Rice", "rice", 25.0, 4.0),
+                item("Broccoli", "broccoli", 20.0, 4.0),
+                item("Vanilla pudding", "vanilla-pudding", 25.0, 4.0),
+            ];
+            p.zones = vec![
+                zone("Chicken to 75–85 °C", 75.0, 85.0, 3.0, None),
+                zone("Rice 70–80 °C", 70.0, 80.0, 1.0, None),
+                zone("Broccoli 65–75 °C", 65.0, 75.0, 1.0, None),
+                zone("Pudding stays cool", -40.0, 10.0, 1.0, None),
+            ];
+            paint(&mut p, 1, 1, 1..13, 1..9);
+            paint(&mut p, 2, 2, 15..27, 1..9);
+            paint(&mut p, 3, 3, 1..13, 10..17);
+            paint(&mut p, 4, 4, 19..27, 11..17);
+            p
+        }
+        "frozen-portion" => {
+            // A frozen lasagne portion reheated to the reheating minimum.
+            let mut p = base("Frozen lasagne portion (illustrative)", 20, 14, 10.0, 11);
+            p.items = vec![item("Lasagne, frozen", "lasagne", 35.0, -18.0)];
+            p.zones = vec![zone("Lasagne 75–90 °C", 75.0, 90.0, 1.0, None)];
+            p.oven.budget_s = Some(600.0);
+            p.oven.sequencing = Sequencing::Rounds(8);
+            paint(&mut p, 1, 1, 4..16, 3..11);
+            p
+        }
+        "side-by-side" => {
+            // Two foods side by side that must end at different temperatures.
+            let mut p = base(
+                "Two temperatures side by side (illustrative)",
+                24,
+                12,
+                10.0,
+                5,
+            );
+            p.items = vec![
+                item("Mashed potato", "mashed-potato", 25.0, 5.0),
+                item("Carrots", "carrots", 20.0, 5.0),
+            ];
+            p.zones = vec![
+                zone("Potato hot, 75–85 °C", 75.0, 85.0, 1.0, None),
+                zone("Carrots warm, 40–50 °C", 40.0, 50.0, 1.0, None),
+            ];
+            paint(&mut p, 1, 1, 2..11, 2..10);
+            paint(&mut p, 2, 2, 13..22, 2..10);
+            p
+        }
+        _ => return None,
+    })
+}

@@ -1,0 +1,38 @@
+//! Traycast plans: what users edit and share, and the pipeline that evaluates them.
+//!
+//! - [`model`]: tray, food items, zones with bands, weights and hard caps, oven settings;
+//!   validation with messages that name the field.
+//! - [`field`]: the illustrative synthetic field model (cavity modes near 2.45 GHz) that makes
+//!   heating maps for any layout, scaled by the IEC 60705 water-load method.
+//! - [`library`]: measured map libraries — CSV and JSON import/export, validation (units, scale),
+//!   load matching and the replay window.
+//! - [`evaluate`]: plan + maps → dwell solve → linear prediction → simulated time course →
+//!   errors, band coverage, coldest-cell verdicts, unsteered baseline, feasibility diagnosis.
+//! - [`robustness`]: the plan's schedule with the foods placed one cell off.
+//! - [`wire`]: plan JSON, share links, schedule CSV — versioned boundary formats.
+//! - [`demos`]: illustrative demo scenarios.
+//!
+//! No files, no DOM: everything takes and returns values, strings and bytes.
+//!
+//! # Example
+//!
+//! ```
+//! use traycast_plan::{demos, evaluate, wire};
+//!
+//! let plan = demos::demo("side-by-side").unwrap();
+//! let eval = evaluate::evaluate(&plan, None, evaluate::Options::default()).unwrap();
+//! assert_eq!(eval.dwell.len(), plan.oven.configs);
+//! let link = wire::to_link(&plan);
+//! assert_eq!(wire::from_link(&link).unwrap(), plan);
+//! ```
+
+pub mod demos;
+mod error;
+pub mod evaluate;
+pub mod field;
+pub mod library;
+pub mod model;
+pub mod robustness;
+pub mod wire;
+
+pub use error::PlanError;

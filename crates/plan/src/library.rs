@@ -1,0 +1,574 @@
+//! Heating-map libraries: recorded loads with one map per configuration; import, export,
+//! validation, and load matching (the replay window).
+//!
+//! CSV format "traycast-maps 1" (long form, our own design):
+//!
+//! ```text
+//! # traycast-maps 1
+//! # name: Test kitchen oven, run 3
+//! # tray: 12 x 8 cells of 25 mm
+//! # configurations: 4
+//! # units: K/s
+//! load,config,row,col,class,rate
+//! lunch-a,0,0,0,meat,0.182
+//! ```
+//!
+//! `class` is meat, watery, salty or fatty (empty cells are simply absent). `units` may be K/s,
+//! K/min or degF/s; rates are converted to K/s on import.
+
+use crate::error::PlanError;
+use serde::{Deserialize, Serialize};
+use traycast_thermal::dielectric::LossClass;
+
+/// One recorded load: its layout and one rate map per configuration.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RecordedLoad {
+    /// Name of the load.
+    pub name: String,
+    /// Absorption class per cell, None for empty cells.
+    pub layout: Vec<Option<LossClass>>,
+    /// Config-major rates, K/s (0 for empty cells).
+    pub rates: Vec<f64>,
+}
+
+/// A library of recorded loads for one oven and tray grid.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MapLibrary {
+    /// Library name.
+    pub name: String,
+    /// Cells across.
+    pub width: usize,
+    /// Cells down.
+    pub height: usize,
+    /// Cell size, mm.
+    pub cell_mm: f64,
+    /// Number of configurations.
+    pub configs: usize,
+    /// Recorded loads.
+    pub loads: Vec<RecordedLoad>,
+}
+
+/// Above this median rate (K/s over food cells) a file is probably not in K/s.
+pub const IMPLAUSIBLY_FAST: f64 = 10.0;
+/// Below this median rate (K/s) a file is probably not in K/s either.
+pub const IMPLAUSIBLY_SLOW: f64 = 1e-4;
+
+fn class_letter(c: Option<LossClass>) -> char {
+    match c {
+        None => '.',
+        Some(LossClass::Meat) => 'm',
+        Some(LossClass::Watery) => 'w',
+        Some(LossClass::Salty) => 's',
+        Some(LossClass::Fatty) => 'f',
+    }
+}
+
+fn letter_class(ch: char) -> Option<Option<LossClass>> {
+    Some(match ch {
+        '.' => None,
+        'm' => Some(LossClass::Meat),
+        'w' => Some(LossClass::Watery),
+        's' => Some(LossClass::Salty),
+        'f' => Some(LossClass::Fatty),
+        _ => return None,
+    })
+}
+
+/// Where a plan stands relative to a library's recorded loads.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Window {
+    /// Score ≥ 0.90: the layout is close enough to replay the maps.
+    Inside,
+    /// 0.75 ≤ score < 0.90: similar load; expect deviations, verify by measurement.
+    Marginal,
+    /// Score < 0.75: the maps were recorded for a different load and should not be trusted.
+    Outside,
+}
+
+/// Replay-window thresholds (Traycast's own product choice, not a standard): inside ≥ 0.90,
+/// marginal ≥ 0.75.
+pub const WINDOW_INSIDE: f64 = 0.90;
+/// See [`WINDOW_INSIDE`].
+pub const WINDOW_MARGINAL: f64 = 0.75;
+
+/// The best-matching recorded load.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LoadMatch {
+    /// Index into `loads`.
+    pub load: usize,
+    /// Similarity 0…1: 1 − (mismatch over the cells that hold food in either layout), where food
+    /// against empty counts 1 and food of another absorption class counts 0.5.
+    pub score: f64,
+    /// Window the score falls in.
+    pub window: Window,
+}
+
+/// Similarity of two layouts (see [`LoadMatch::score`]).
+pub fn similarity(a: &[Option<LossClass>], b: &[Option<LossClass>]) -> f64 {
+    let (mut used, mut miss) = (0.0, 0.0);
+    for (x, y) in a.iter().zip(b) {
+        match (x, y) {
+            (None, None) => {}
+            (Some(p), Some(q)) => {
+                used += 1.0;
+                if p != q {
+                    miss += 0.5;
+                }
+            }
+            _ => {
+                used += 1.0;
+                miss += 1.0;
+            }
+        }
+    }
+    if used == 0.0 { 1.0 } else { 1.0 - miss / used }
+}
+
+impl MapLibrary {
+    /// Scores `layout` against every recorded load and returns the best.
+    pub fn best_match(&self, layout: &[Option<LossClass>]) -> Option<LoadMatch> {
+        self.loads
+            .iter()
+            .enumerate()
+            .map(|(k, l)| (k, similarity(layout, &l.layout)))
+            .max_by(|a, b| a.1.total_cmp(&b.1))
+            .map(|(load, score)| LoadMatch {
+                load,
+                score,
+                window: if score >= WINDOW_INSIDE {
+                    Window::Inside
+                } else if score >= WINDOW_MARGINAL {
+                    Window::Marginal
+                } else {
+                    Window::Outside
+                },
+            })
+    }
+
+    /// Structural and plausibility checks; the error names the load, configuration and cell.
+    pub fn validate(&self) -> Result<(), PlanError> {
+        let n = self.width * self.height;
+        if n == 0 || self.width > crate::model::MAX_SIDE || self.height > crate::model::MAX_SIDE {
+            return Err(PlanError::new(
+                "library",
+                format!("tray {} × {} is not allowed", self.width, self.height),
+            ));
+        }
+        if self.configs == 0 || self.configs > crate::model::MAX_CONFIGS {
+            return Err(PlanError::new(
+                "library",
+                format!("{} configurations is not allowed", self.configs),
+            ));
+        }
+        if !(self.cell_mm.is_finite() && self.cell_mm > 0.0) {
+            return Err(PlanError::new(
+                "library",
+                format!("cell size {} mm is not allowed", self.cell_mm),
+            ));
+        }
+        if self.loads.is_empty() {
+            return Err(PlanError::new("library", "holds no recorded load"));
+        }
+        let mut food_rates = Vec::new();
+        for l in &self.loads {
+            if l.layout.len() != n || l.rates.len() != n * self.configs {
+                return Err(PlanError::new(
+                    format!("load '{}'", l.name),
+                    "layout or maps do not match the tray size",
+                ));
+            }
+            for c in 0..self.configs {
+                for i in 0..n {
+                    let r = l.rates[c * n + i];
+                    let place = || {
+                        format!(
+                            "load '{}', configuration {c}, row {}, col {}",
+                            l.name,
+                            i / self.width,
+                            i % self.width
+                        )
+                    };
+                    if !r.is_finite() {
+                        return Err(PlanError::new(place(), format!("rate {r} is not a number")));
+                    }
+                    if r < 0.0 {
+                        return Err(PlanError::new(place(), format!("rate {r} K/s is negative")));
+                    }
+                    if l.layout[i].is_some() {
+                        food_rates.push(r);
+                    }
+                }
+            }
+        }
+        food_rates.sort_by(f64::total_cmp);
+        if let Some(&median) = food_rates.get(food_rates.len() / 2) {
+            if median > IMPLAUSIBLY_FAST {
+                return Err(PlanError::new(
+                    "library",
+                    format!(
+                        "median rate {median:.3} K/s is implausibly fast for a microwave oven (above {IMPLAUSIBLY_FAST} K/s); if the file is per minute say 'units: K/min'"
+                    ),
+                ));
+            }
+            if median < IMPLAUSIBLY_SLOW {
+                return Err(PlanError::new(
+                    "library",
+                    format!(
+                        "median rate {median:e} K/s is implausibly slow (below {IMPLAUSIBLY_SLOW} K/s); check the units"
+                    ),
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// Parses the CSV format (see the module docs). Errors name the line.
+    pub fn from_csv(text: &str) -> Result<Self, PlanError> {
+        let mut name = String::from("imported library");
+        let (mut size, mut configs, mut factor) = (None, None, None);
+        let mut body = String::new();
+        let mut first_body_line = 0;
+        for (k, line) in text.lines().enumerate() {
+            let lineno = k + 1;
+            let at = |m: String| PlanError::new(format!("line {lineno}"), m);
+            if let Some(rest) = line.strip_prefix('#') {
+                let rest = rest.trim();
+                if let Some((key, value)) = rest.split_once(':') {
+                    let value = value.trim();
+                    match key.trim() {
+                        "name" => name = value.to_string(),
+                        "tray" => {
+                            // "W x H cells of S mm"
+                            let parts: Vec<&str> = value.split_whitespace().collect();
+                            let parsed = (|| {
+                                Some((
+                                    parts.first()?.parse::<usize>().ok()?,
+                                    parts.get(2)?.parse::<usize>().ok()?,
+                                    parts.get(5)?.parse::<f64>().ok()?,
+                                ))
+                            })();
+                            size = Some(parsed.ok_or_else(|| {
+                                at(format!(
+                                    "tray should read like '12 x 8 cells of 25 mm', not '{value}'"
+                                ))
+                            })?);
+                        }
+                        "configurations" => {
+                            configs = Some(value.parse::<usize>().map_err(|_| {
+                                at(format!("configurations '{value}' is not a whole number"))
+                            })?)
+                        }
+                        "units" => {
+                            factor = Some(match value {
+                                "K/s" => 1.0,
+                                "K/min" => 1.0 / 60.0,
+                                "degF/s" | "°F/s" => 5.0 / 9.0,
+                                other => {
+                                    return Err(at(format!(
+                                        "units '{other}' not understood: use K/s, K/min or degF/s"
+                                    )));
+                                }
+                            })
+                        }
+                        _ => {}
+                    }
+                } else if rest.starts_with("traycast-maps") && rest != "traycast-maps 1" {
+                    return Err(at(format!(
+                        "format '{rest}' is not supported (this version reads 'traycast-maps 1')"
+                    )));
+                }
+                continue;
+            }
+            if body.is_empty() {
+                first_body_line = lineno;
+            }
+            body.push_str(line);
+            body.push('\n');
+        }
+        let head = |m: &str| PlanError::new("header", m.to_string());
+        let (width, height, cell_mm) =
+            size.ok_or_else(|| head("missing '# tray: W x H cells of S mm'"))?;
+        let configs = configs.ok_or_else(|| head("missing '# configurations: N'"))?;
+        let factor = factor.ok_or_else(|| head("missing '# units: K/s' (or K/min, degF/s)"))?;
+        if width == 0
+            || height == 0
+            || width > crate::model::MAX_SIDE
+            || height > crate::model::MAX_SIDE
+        {
+            return Err(head("tray size out of range"));
+        }
+        if configs == 0 || configs > crate::model::MAX_CONFIGS {
+            return Err(head("configurations out of range"));
+        }
+        let n = width * height;
+        let mut reader = csv::ReaderBuilder::new()
+            .trim(csv::Trim::All)
+            .from_reader(body.as_bytes());
+        let headers = reader
+            .headers()
+            .map_err(|e| PlanError::new(format!("line {first_body_line}"), e.to_string()))?
+            .clone();
+        let want = ["load", "config", "row", "col", "class", "rate"];
+        if headers.iter().collect::<Vec<_>>() != want {
+            return Err(PlanError::new(
+                format!("line {first_body_line}"),
+                format!("columns should be {}", want.join(",")),
+            ));
+        }
+        let mut loads: Vec<RecordedLoad> = Vec::new();
+        let mut seen: Vec<Vec<bool>> = Vec::new();
+        for rec in reader.records() {
+            let rec = rec.map_err(|e| {
+                PlanError::new(
+                    format!(
+                        "line {}",
+                        e.position()
+                            .map_or(0, |p| p.line() as usize + first_body_line - 1)
+                    ),
+                    e.to_string(),
+                )
+            })?;
+            let lineno = rec.position().map_or(0, |p| p.line() as usize) + first_body_line - 1;
+            let at = |m: String| PlanError::new(format!("line {lineno}"), m);
+            if rec.len() != 6 {
+                return Err(at(format!("has {} fields, expected 6", rec.len())));
+            }
+            let int = |k: usize, what: &str, max: usize| -> Result<usize, PlanError> {
+                let v: usize = rec[k]
+                    .parse()
+                    .map_err(|_| at(format!("{what} '{}' is not a whole number", &rec[k])))?;
+                if v >= max {
+                    return Err(at(format!("{what} {v} is out of range (0 to {})", max - 1)));
+                }
+                Ok(v)
+            };
+            let config = int(1, "config", configs)?;
+            let row = int(2, "row", height)?;
+            let col = int(3, "col", width)?;
+            let class = LossClass::parse(&rec[4]).ok_or_else(|| {
+                at(format!(
+                    "class '{}' is not one of meat, watery, salty, fatty",
+                    &rec[4]
+                ))
+            })?;
+            let rate: f64 = rec[5]
+                .parse()
+                .map_err(|_| at(format!("rate '{}' is not a number", &rec[5])))?;
+            if !rate.is_finite() {
+                return Err(at(format!("rate '{}' is not a number", &rec[5])));
+            }
+            if rate < 0.0 {
+                return Err(at(format!(
+                    "rate {rate} is negative; heating rates are ≥ 0"
+                )));
+            }
+            let li = match loads.iter().position(|l| l.name == rec[0]) {
+                Some(k) => k,
+                None => {
+                    loads.push(RecordedLoad {
+                        name: rec[0].to_string(),
+                        layout: vec![None; n],
+                        rates: vec![0.0; n * configs],
+                    });
+                    seen.push(vec![false; n * configs]);
+                    loads.len() - 1
+                }
+            };
+            let i = row * width + col;
+            let load = &mut loads[li];
+            if seen[li][config * n + i] {
+                return Err(at(format!(
+                    "duplicate sample for load '{}', configuration {config}, row {row}, col {col}",
+                    load.name
+                )));
+            }
+            if let Some(existing) = load.layout[i]
+                && existing != class
+            {
+                return Err(at(format!(
+                    "row {row}, col {col} was '{}' earlier in load '{}'",
+                    existing.as_str(),
+                    load.name
+                )));
+            }
+            load.layout[i] = Some(class);
+            seen[li][config * n + i] = true;
+            load.rates[config * n + i] = rate * factor;
+        }
+        for (l, s) in loads.iter().zip(&seen) {
+            for i in (0..n).filter(|&i| l.layout[i].is_some()) {
+                if let Some(c) = (0..configs).find(|&c| !s[c * n + i]) {
+                    return Err(PlanError::new(
+                        format!("load '{}'", l.name),
+                        format!(
+                            "no rate for configuration {c} at row {}, col {}",
+                            i / width,
+                            i % width
+                        ),
+                    ));
+                }
+            }
+        }
+        let lib = MapLibrary {
+            name,
+            width,
+            height,
+            cell_mm,
+            configs,
+            loads,
+        };
+        lib.validate()?;
+        Ok(lib)
+    }
+
+    /// Writes the CSV format (K/s).
+    pub fn to_csv(&self) -> String {
+        let n = self.width * self.height;
+        let mut out = format!(
+            "# traycast-maps 1\n# name: {}\n# tray: {} x {} cells of {} mm\n# configurations: {}\n# units: K/s\nload,config,row,col,class,rate\n",
+            self.name.replace('\n', " "),
+            self.width,
+            self.height,
+            self.cell_mm,
+            self.configs
+        );
+        for l in &self.loads {
+            for c in 0..self.configs {
+                for i in 0..n {
+                    if let Some(class) = l.layout[i] {
+                        let name = if l.name.contains([',', '"', '\n']) {
+                            format!("\"{}\"", l.name.replace('"', "\"\""))
+                        } else {
+                            l.name.clone()
+                        };
+                        out.push_str(&format!(
+                            "{name},{c},{},{},{},{}\n",
+                            i / self.width,
+                            i % self.width,
+                            class.as_str(),
+                            l.rates[c * n + i]
+                        ));
+                    }
+                }
+            }
+        }
+        out
+    }
+
+    /// JSON form.
+    pub fn to_json(&self) -> String {
+        let doc = LibraryDoc {
+            format: FORMAT.into(),
+            version: 1,
+            name: self.name.clone(),
+            width: self.width,
+            height: self.height,
+            cell_mm: self.cell_mm,
+            configs: self.configs,
+            units: "K/s".into(),
+            loads: self
+                .loads
+                .iter()
+                .map(|l| LoadDoc {
+                    name: l.name.clone(),
+                    layout: l
+                        .layout
+                        .chunks(self.width)
+                        .map(|r| r.iter().map(|&c| class_letter(c)).collect())
+                        .collect(),
+                    rates: l
+                        .rates
+                        .chunks(self.width * self.height)
+                        .map(|c| c.to_vec())
+                        .collect(),
+                })
+                .collect(),
+        };
+        serde_json::to_string_pretty(&doc).expect("library serialises")
+    }
+
+    /// Parses the JSON form.
+    pub fn from_json(text: &str) -> Result<Self, PlanError> {
+        let doc: LibraryDoc = serde_json::from_str(text)
+            .map_err(|e| PlanError::new(format!("line {}", e.line()), e.to_string()))?;
+        if doc.format != FORMAT || doc.version != 1 {
+            return Err(PlanError::new(
+                "format",
+                format!(
+                    "'{}' version {} is not a map library this version reads",
+                    doc.format, doc.version
+                ),
+            ));
+        }
+        if doc.units != "K/s" {
+            return Err(PlanError::new("units", "JSON libraries are stored in K/s"));
+        }
+        let n = doc.width * doc.height;
+        let mut loads = Vec::new();
+        for l in doc.loads {
+            let mut layout = Vec::with_capacity(n);
+            for (r, row) in l.layout.iter().enumerate() {
+                if row.chars().count() != doc.width {
+                    return Err(PlanError::new(
+                        format!("load '{}' layout row {r}", l.name),
+                        format!("has {} cells, expected {}", row.chars().count(), doc.width),
+                    ));
+                }
+                for ch in row.chars() {
+                    layout.push(letter_class(ch).ok_or_else(|| {
+                        PlanError::new(
+                            format!("load '{}' layout row {r}", l.name),
+                            format!("'{ch}' is not one of . m w s f"),
+                        )
+                    })?);
+                }
+            }
+            if layout.len() != n
+                || l.rates.len() != doc.configs
+                || l.rates.iter().any(|m| m.len() != n)
+            {
+                return Err(PlanError::new(
+                    format!("load '{}'", l.name),
+                    "layout or maps do not match the tray size",
+                ));
+            }
+            loads.push(RecordedLoad {
+                name: l.name,
+                layout,
+                rates: l.rates.concat(),
+            });
+        }
+        let lib = MapLibrary {
+            name: doc.name,
+            width: doc.width,
+            height: doc.height,
+            cell_mm: doc.cell_mm,
+            configs: doc.configs,
+            loads,
+        };
+        lib.validate()?;
+        Ok(lib)
+    }
+}
+
+const FORMAT: &str = "traycast-maps";
+
+#[derive(Serialize, Deserialize)]
+struct LibraryDoc {
+    format: String,
+    version: u32,
+    name: String,
+    width: usize,
+    height: usize,
+    cell_mm: f64,
+    configs: usize,
+    units: String,
+    loads: Vec<LoadDoc>,
+}
+
+#[derive(Serialize, Deserialize)]
+struct LoadDoc {
+    name: String,
+    layout: Vec<String>,
+    rates: Vec<Vec<f64>>,
+}

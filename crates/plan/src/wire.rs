@@ -1,0 +1,392 @@
+//! File and link formats of our own: plan JSON ("traycast-plan" version 1), the share link
+//! ("tc1." + URL-safe base64 of deflated postcard bytes), and the controller schedule CSV.
+//!
+//! These types are the boundary: versioned, separate from [`crate::model`], and every field is
+//! validated on the way in. Untrusted input becomes a [`PlanError`], never a panic.
+
+use crate::error::PlanError;
+use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
+use base64::Engine;
+use serde::{Deserialize, Serialize};
+use traycast_thermal::safety::CAUTIONS;
+use traycast_thermal::schedule::Schedule;
+
+const FORMAT: &str = "traycast-plan";
+const VERSION: u32 = 1;
+/// Prefix of a share link's payload (format tag and version).
+pub const LINK_TAG: &str = "tc1.";
+/// Longest link payload accepted, characters.
+pub const MAX_LINK: usize = 64 * 1024;
+/// Largest decompressed plan accepted, bytes (a bound against decompression bombs).
+pub const MAX_INFLATED: usize = 256 * 1024;
+
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct PlanDoc {
+    format: String,
+    version: u32,
+    name: String,
+    tray: TrayDoc,
+    items: Vec<ItemDoc>,
+    /// Rows of the food grid: '.' empty, 'A'… the items in order.
+    food: Vec<String>,
+    zones: Vec<ZoneDoc>,
+    /// Rows of the zone grid: '.' none, 'a'… the zones in order.
+    zone: Vec<String>,
+    oven: OvenDoc,
+    maps: MapsDoc,
+}
+
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct TrayDoc {
+    width: u32,
+    height: u32,
+    cell_mm: f64,
+}
+
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct ItemDoc {
+    name: String,
+    food: String,
+    thickness_mm: f64,
+    start_c: f64,
+}
+
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct ZoneDoc {
+    name: String,
+    min_c: f64,
+    max_c: f64,
+    weight: f64,
+    cap_c: Option<f64>,
+}
+
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct OvenDoc {
+    power_w: f64,
+    configs: u32,
+    budget_s: Option<f64>,
+    limit_s: Option<f64>,
+    quantum_s: f64,
+    time_penalty: f64,
+    /// 1 = one block per configuration, more = interleaved rounds.
+    rounds: u16,
+    standing_s: f64,
+}
+
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct MapsDoc {
+    /// "field-model" or "library".
+    source: String,
+    seed: u64,
+    library: Option<String>,
+}
+
+fn grid_rows(cells: &[u8], width: usize, base: u8) -> Vec<String> {
+    cells
+        .chunks(width)
+        .map(|r| {
+            r.iter()
+                .map(|&v| if v == 0 { '.' } else { (base + v - 1) as char })
+                .collect()
+        })
+        .collect()
+}
+
+fn parse_grid(
+    rows: &[String],
+    width: usize,
+    height: usize,
+    base: u8,
+    count: usize,
+    what: &str,
+) -> Result<Vec<u8>, PlanError> {
+    if rows.len() != height {
+        return Err(PlanError::new(
+            what,
+            format!("has {} rows, the tray has {height}", rows.len()),
+        ));
+    }
+    let mut out = Vec::with_capacity(width * height);
+    for (r, row) in rows.iter().enumerate() {
+        let chars: Vec<char> = row.chars().collect();
+        if chars.len() != width {
+            return Err(PlanError::new(
+                format!("{what} row {r}"),
+                format!("has {} cells, the tray has {width}", chars.len()),
+            ));
+        }
+        for (c, ch) in chars.into_iter().enumerate() {
+            let v = if ch == '.' {
+                0
+            } else {
+                let k = (ch as u32).wrapping_sub(base as u32);
+                if k >= count as u32 {
+                    return Err(PlanError::new(
+                        format!("{what} row {r}, col {c}"),
+                        format!(
+                            "'{ch}' names no {}",
+                            if base == b'A' { "food item" } else { "zone" }
+                        ),
+                    ));
+                }
+                k as u8 + 1
+            };
+            out.push(v);
+        }
+    }
+    Ok(out)
+}
+
+impl From<&Plan> for PlanDoc {
+    fn from(p: &Plan) -> Self {
+        PlanDoc {
+            format: FORMAT.into(),
+            version: VERSION,
+            name: p.name.clone(),
+            tray: TrayDoc {
+                width: p.tray.width as u32,
+                height: p.tray.height as u32,
+                cell_mm: p.tray.cell_mm,
+            },
+            items: p
+                .items
+                .iter()
+                .map(|i| ItemDoc {
+                    name: i.name.clone(),
+                    food: i.food.clone(),
+                    thickness_mm: i.thickness_mm,
+                    start_c: i.start_c,
+                })
+                .collect(),
+            food: grid_rows(&p.food, p.tray.width, b'A'),
+            zones: p
+                .zones
+                .iter()
+                .map(|z| ZoneDoc {
+                    name: z.name.clone(),
+                    min_c: z.min_c,
+                    max_c: z.max_c,
+                    weight: z.weight,
+                    cap_c: z.cap_c,
+                })
+                .collect(),
+            zone: grid_rows(&p.zone, p.tray.width, b'a'),
+            oven: OvenDoc {
+                power_w: p.oven.power_w,
+                configs: p.oven.configs as u32,
+                budget_s: p.oven.budget_s,
+                limit_s: p.oven.limit_s,
+                quantum_s: p.oven.quantum_s,
+                time_penalty: p.oven.time_penalty,
+                rounds: match p.oven.sequencing {
+                    Sequencing::Blocks => 1,
+                    Sequencing::Rounds(r) => r,
+                },
+                standing_s: p.oven.standing_s,
+            },
+            maps: match &p.maps {
+                MapSource::Synthetic { seed } => MapsDoc {
+                    source: "field-model".into(),
+                    seed: *seed,
+                    library: None,
+                },
+                MapSource::Library { name } => MapsDoc {
+                    source: "library".into(),
+                    seed: 0,
+                    library: Some(name.clone()),
+                },
+            },
+        }
+    }
+}
+
+impl TryFrom<PlanDoc> for Plan {
+    type Error = PlanError;
+
+    fn try_from(d: PlanDoc) -> Result<Self, PlanError> {
+        if d.format != FORMAT {
+            return Err(PlanError::new(
+                "format",
+                format!("'{}' is not a Traycast plan", d.format),
+            ));
+        }
+        if d.version != VERSION {
+            return Err(PlanError::new(
+                "version",
+                format!(
+                    "plan format version {} is not supported (this version reads {VERSION})",
+                    d.version
+                ),
+            ));
+        }
+        let (w, h) = (d.tray.width as usize, d.tray.height as usize);
+        if !(1..=crate::model::MAX_SIDE).contains(&w) || !(1..=crate::model::MAX_SIDE).contains(&h)
+        {
+            return Err(PlanError::new(
+                "tray",
+                format!(
+                    "a {w} × {h} tray is not allowed (1 to {} cells a side)",
+                    crate::model::MAX_SIDE
+                ),
+            ));
+        }
+        if d.items.len() > crate::model::MAX_ITEMS || d.zones.len() > crate::model::MAX_ITEMS {
+            return Err(PlanError::new(
+                "items",
+                format!("at most {} food items and zones", crate::model::MAX_ITEMS),
+            ));
+        }
+        let food = parse_grid(&d.food, w, h, b'A', d.items.len(), "food")?;
+        let zone = parse_grid(&d.zone, w, h, b'a', d.zones.len(), "zone")?;
+        let maps = match d.maps.source.as_str() {
+            "field-model" => MapSource::Synthetic { seed: d.maps.seed },
+            "library" => MapSource::Library {
+                name: d
+                    .maps
+                    .library
+                    .ok_or_else(|| PlanError::new("maps.library", "missing library name"))?,
+            },
+            other => {
+                return Err(PlanError::new(
+                    "maps.source",
+                    format!("'{other}' is not field-model or library"),
+                ));
+            }
+        };
+        let plan = Plan {
+            name: d.name,
+            tray: TraySize {
+                width: w,
+                height: h,
+                cell_mm: d.tray.cell_mm,
+            },
+            items: d
+                .items
+                .into_iter()
+                .map(|i| FoodItem {
+                    name: i.name,
+                    food: i.food,
+                    thickness_mm: i.thickness_mm,
+                    start_c: i.start_c,
+                })
+                .collect(),
+            food,
+            zones: d
+                .zones
+                .into_iter()
+                .map(|z| Zone {
+                    name: z.name,
+                    min_c: z.min_c,
+                    max_c: z.max_c,
+                    weight: z.weight,
+                    cap_c: z.cap_c,
+                })
+                .collect(),
+            zone,
+            oven: Oven {
+                power_w: d.oven.power_w,
+                configs: d.oven.configs as usize,
+                budget_s: d.oven.budget_s,
+                limit_s: d.oven.limit_s,
+                quantum_s: d.oven.quantum_s,
+                time_penalty: d.oven.time_penalty,
+                sequencing: if d.oven.rounds <= 1 {
+                    Sequencing::Blocks
+                } else {
+                    Sequencing::Rounds(d.oven.rounds)
+                },
+                standing_s: d.oven.standing_s,
+            },
+            maps,
+        };
+        plan.validate()?;
+        Ok(plan)
+    }
+}
+
+/// The plan as JSON (pretty-printed, stable field order).
+pub fn to_json(plan: &Plan) -> String {
+    serde_json::to_string_pretty(&PlanDoc::from(plan)).expect("plans serialise")
+}
+
+/// Reads a plan JSON file; the error names the line or the field.
+pub fn from_json(text: &str) -> Result<Plan, PlanError> {
+    let doc: PlanDoc = serde_json::from_str(text)
+        .map_err(|e| PlanError::new(format!("line {}", e.line()), e.to_string()))?;
+    Plan::try_from(doc)
+}
+
+/// The share-link payload for the URL fragment.
+pub fn to_link(plan: &Plan) -> String {
+    let bytes = postcard::to_allocvec(&PlanDoc::from(plan)).expect("plans serialise");
+    let packed = miniz_oxide::deflate::compress_to_vec(&bytes, 9);
+    format!(
+        "{LINK_TAG}{}",
+        base64::engine::general_purpose::URL_SAFE_NO_PAD.encode(packed)
+    )
+}
+
+/// Decodes a share-link payload (with or without a leading '#'). Bounded and fully validated.
+pub fn from_link(link: &str) -> Result<Plan, PlanError> {
+    let at = |m: String| PlanError::new("link", m);
+    let link = link.trim().trim_start_matches('#');
+    if link.len() > MAX_LINK {
+        return Err(at(format!(
+            "is {} characters long; links longer than {MAX_LINK} are refused",
+            link.len()
+        )));
+    }
+    let Some(body) = link.strip_prefix(LINK_TAG) else {
+        if link.starts_with("tc") && link.contains('.') {
+            return Err(at(format!(
+                "uses format '{}', which this version cannot read (it reads '{LINK_TAG}')",
+                link.split('.').next().unwrap_or("")
+            )));
+        }
+        return Err(at(
+            "is not a Traycast plan link (it should start with 'tc1.')".into(),
+        ));
+    };
+    let packed = base64::engine::general_purpose::URL_SAFE_NO_PAD
+        .decode(body)
+        .map_err(|e| {
+            at(format!(
+                "is damaged (not URL-safe base64: {e}); it may have been cut off when copied"
+            ))
+        })?;
+    let bytes = miniz_oxide::inflate::decompress_to_vec_with_limit(&packed, MAX_INFLATED).map_err(|e| {
+        if matches!(e.status, miniz_oxide::inflate::TINFLStatus::HasMoreOutput) {
+            at(format!("expands past {MAX_INFLATED} bytes and was refused"))
+        } else {
+            at("is damaged (its compressed data is incomplete or corrupt); it may have been cut off when copied".into())
+        }
+    })?;
+    let doc: PlanDoc = postcard::from_bytes(&bytes)
+        .map_err(|e| at(format!("holds data this version cannot read ({e})")))?;
+    Plan::try_from(doc).map_err(|e| PlanError::new(format!("link: {}", e.place), e.message))
+}
+
+/// The schedule as CSV a controller can run: step, configuration, start and duration in seconds,
+/// preceded by the usual cautions as comment lines.
+pub fn schedule_csv(plan: &Plan, schedule: &Schedule) -> String {
+    let mut out = format!(
+        "# Traycast schedule for '{}'\n",
+        plan.name.replace(['\n', '\r'], " ")
+    );
+    for c in CAUTIONS {
+        out.push_str(&format!("# {c}\n"));
+    }
+    out.push_str("step,configuration,start_s,duration_s\n");
+    let mut t = 0.0;
+    for (k, s) in schedule.steps.iter().enumerate() {
+        out.push_str(&format!(
+            "{},{},{:.3},{:.3}\n",
+            k + 1,
+            s.config,
+            t,
+            s.seconds
+        ));
+        t += s.seconds;
+    }
+    out
+}

@@ -1,0 +1,443 @@
+//! Plans end to end: links and files, hostile input, libraries, the water-load power check,
+//! agreement with a direct solve, demos against the unsteered baseline.
+
+use proptest::prelude::*;
+use traycast_plan::evaluate::{self, Evaluator, Options};
+use traycast_plan::library::{MapLibrary, RecordedLoad, Window};
+use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
+use traycast_plan::{demos, wire};
+use traycast_solver::{DwellSolver, Rates, Spec};
+use traycast_thermal::dielectric::LossClass;
+
+fn plan_strategy() -> impl Strategy<Value = Plan> {
+    (
+        1usize..20,
+        1usize..14,
+        0usize..4,
+        0usize..4,
+        any::<u64>(),
+        proptest::collection::vec(any::<u8>(), 400),
+        "[ -~]{0,30}",
+    )
+        .prop_map(|(w, h, ni, nz, seed, paint, name)| {
+            let ids = ["chicken-breast", "rice", "carrots", "vanilla-pudding"];
+            let mut p = Plan::blank(w, h, 10.0);
+            p.name = name;
+            p.items = (0..ni)
+                .map(|k| FoodItem {
+                    name: format!("item <{k}> & \"x\""),
+                    food: ids[k].into(),
+                    thickness_mm: 10.0 + k as f64,
+                    start_c: 4.0 - k as f64,
+                })
+                .collect();
+            p.zones = (0..nz)
+                .map(|k| Zone {
+                    name: format!("zone {k}"),
+                    min_c: 50.0 + k as f64,
+                    max_c: 60.0 + k as f64,
+                    weight: 1.0 + k as f64,
+                    cap_c: (k == 2).then_some(65.0),
+                })
+                .collect();
+            for i in 0..w * h {
+                let f = if ni == 0 {
+                    0
+                } else {
+                    paint[i % 400] % (ni as u8 + 1)
+                };
+                p.food[i] = f;
+                p.zone[i] = if f == 0 || nz == 0 {
+                    0
+                } else {
+                    paint[(i * 7) % 400] % (nz as u8 + 1)
+                };
+            }
+            p.oven.sequencing = if seed % 2 == 0 {
+                Sequencing::Blocks
+            } else {
+                Sequencing::Rounds(3)
+            };
+            p.oven.budget_s = if seed % 3 == 0 { None } else { Some(200.0) };
+            p.maps = if seed % 5 == 0 {
+                MapSource::Library {
+                    name: "kitchen".into(),
+                }
+            } else {
+                MapSource::Synthetic { seed }
+            };
+            p
+        })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
+
+    #[test]
+    fn links_and_json_round_trip_exactly(plan in plan_strategy()) {
+        plan.validate().unwrap();
+        prop_assert_eq!(&wire::from_link(&wire::to_link(&plan)).unwrap(), &plan);
+        prop_assert_eq!(&wire::from_json(&wire::to_json(&plan)).unwrap(), &plan);
+    }
+
+    #[test]
+    fn random_text_is_refused_without_panic(s in ".{0,300}") {
+        prop_assert!(wire::from_link(&s).is_err());
+        let _ = wire::from_json(&s);
+        let _ = MapLibrary::from_csv(&s);
+        let _ = MapLibrary::from_json(&s);
+    }
+
+    #[test]
+    fn random_payloads_and_truncations_are_refused(bytes in proptest::collection::vec(any::<u8>(), 0..400), cut in 0usize..1000) {
+        use base64::Engine;
+        let link = format!("tc1.{}", base64::engine::general_purpose::URL_SAFE_NO_PAD.encode(&bytes));
+        prop_assert!(wire::from_link(&link).is_err());
+        let good = wire::to_link(&demos::demo("lunch-tray").unwrap());
+        let cut = cut % good.len();
+        if cut < good.len() {
+            prop_assert!(wire::from_link(&good[..cut]).is_err());
+        }
+    }
+}
+
+#[test]
+fn hostile_links_get_a_clear_message() {
+    use base64::Engine;
+    let plan = demos::demo("side-by-side").unwrap();
+    let good = wire::to_link(&plan);
+    let msg = |l: &str| wire::from_link(l).unwrap_err().to_string();
+    assert!(msg(&good.replacen("tc1.", "tc2.", 1)).contains("cannot read"));
+    assert!(msg("hello").contains("not a Traycast plan link"));
+    assert!(
+        msg(&good[..good.len() / 2]).contains("damaged")
+            || msg(&good[..good.len() / 2]).contains("cannot read")
+    );
+    // A decompression bomb: 8 MiB of zeros deflate to a few kilobytes.
+    let bomb = miniz_oxide::deflate::compress_to_vec(&vec![0u8; 8 << 20], 10);
+    let link = format!(
+        "tc1.{}",
+        base64::engine::general_purpose::URL_SAFE_NO_PAD.encode(bomb)
+    );
+    assert!(msg(&link).contains("expands past"));
+    // Absurd dimensions.
+    let mut huge = plan.clone();
+    huge.tray.width = 5000;
+    huge.food = vec![0; 5000 * huge.tray.height];
+    huge.zone = huge.food.clone();
+    assert!(msg(&wire::to_link(&huge)).contains("not allowed"));
+    // A link must stay well under 1,000 characters for every demo.
+    for name in demos::DEMOS {
+        assert!(
+            wire::to_link(&demos::demo(name).unwrap()).len() < 1000,
+            "{name}"
+        );
+    }
+}
+
+fn tiny_library() -> MapLibrary {
+    let n = 6;
+    let layout = vec![
+        Some(LossClass::Meat),
+        Some(LossClass::Meat),
+        None,
+        Some(LossClass::Watery),
+        Some(LossClass::Watery),
+        None,
+    ];
+    let rates: Vec<f64> = (0..2 * n)
+        .map(|k| {
+            if layout[k % n].is_some() {
+                0.1 + 0.01 * k as f64
+            } else {
+                0.0
+            }
+        })
+        .collect();
+    MapLibrary {
+        name: "kitchen".into(),
+        width: 3,
+        height: 2,
+        cell_mm: 30.0,
+        configs: 2,
+        loads: vec![RecordedLoad {
+            name: "lunch, run 1".into(),
+            layout,
+            rates,
+        }],
+    }
+}
+
+#[test]
+fn library_csv_and_json_round_trip() {
+    let lib = tiny_library();
+    let csv = lib.to_csv();
+    assert_eq!(MapLibrary::from_csv(&csv).unwrap(), lib);
+    assert_eq!(MapLibrary::from_json(&lib.to_json()).unwrap(), lib);
+    // Per-minute files convert on import.
+    let mut plain = lib.clone();
+    plain.loads[0].name = "run1".into();
+    let per_min = plain
+        .to_csv()
+        .replace("# units: K/s", "# units: K/min")
+        .lines()
+        .map(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            if f.len() == 6 && f[5].parse::<f64>().is_ok() {
+                format!(
+                    "{},{},{},{},{},{}",
+                    f[0],
+                    f[1],
+                    f[2],
+                    f[3],
+                    f[4],
+                    f[5].parse::<f64>().unwrap() * 60.0
+                )
+            } else {
+                l.to_string()
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("\n");
+    let back = MapLibrary::from_csv(&per_min).unwrap();
+    for (a, b) in back.loads[0].rates.iter().zip(&lib.loads[0].rates) {
+        assert!((a - b).abs() < 1e-12);
+    }
+}
+
+#[test]
+fn malformed_libraries_name_the_line() {
+    let csv = tiny_library().to_csv();
+    let lines: Vec<&str> = csv.lines().collect();
+    let with = |k: usize, new: &str| {
+        let mut l: Vec<String> = lines.iter().map(|s| s.to_string()).collect();
+        l[k] = new.to_string();
+        l.join("\n")
+    };
+    let cases = [
+        (with(7, "\"lunch, run 1\",0,0,0,meat,NaN"), "line 8"),
+        (with(7, "\"lunch, run 1\",0,0,0,meat,-0.2"), "line 8"),
+        (with(7, "\"lunch, run 1\",0,9,0,meat,0.1"), "line 8"),
+        (with(7, "\"lunch, run 1\",0,0,0,cheese,0.1"), "line 8"),
+        (with(7, "\"lunch, run 1\",0,0"), "line 8"),
+        (with(4, "# units: furlongs"), "line 5"),
+    ];
+    for (text, place) in cases {
+        let e = MapLibrary::from_csv(&text).unwrap_err();
+        assert!(e.to_string().contains(place), "{e} should name {place}");
+    }
+    // Implausible scale: rates 100× too large look like a unit mistake.
+    let mut lib = tiny_library();
+    lib.loads[0].rates.iter_mut().for_each(|r| *r *= 200.0);
+    assert!(
+        MapLibrary::from_csv(&lib.to_csv())
+            .unwrap_err()
+            .message
+            .contains("implausibly fast")
+    );
+    // Missing cells.
+    let missing = lines
+        .iter()
+        .enumerate()
+        .filter(|(k, _)| *k != 8)
+        .map(|(_, l)| *l)
+        .collect::<Vec<_>>()
+        .join("\n");
+    assert!(
+        MapLibrary::from_csv(&missing)
+            .unwrap_err()
+            .message
+            .contains("no rate")
+    );
+}
+
+#[test]
+fn load_matching_reports_the_replay_window() {
+    let lib = tiny_library();
+    let same = lib.loads[0].layout.clone();
+    assert_eq!(lib.best_match(&same).unwrap().window, Window::Inside);
+    let mut off = same.clone();
+    off[3] = Some(LossClass::Meat);
+    assert_eq!(lib.best_match(&off).unwrap().window, Window::Marginal);
+    let other = vec![
+        None,
+        None,
+        Some(LossClass::Fatty),
+        None,
+        None,
+        Some(LossClass::Fatty),
+    ];
+    assert_eq!(lib.best_match(&other).unwrap().window, Window::Outside);
+}
+
+/// IEC 60705 water-load method: 1000 g of water, P ≈ 4187·ΔT/t. The field model scales every
+/// configuration so this load absorbs the rated power; a simulated run on an approximate disc of
+/// water cells must read back the rated power within 5 % (the grid only approximates the disc).
+#[test]
+fn water_load_absorbs_the_rated_power() {
+    let (w, h, cell) = (19usize, 19usize, 10.0);
+    let mut plan = Plan::blank(w, h, cell);
+    plan.oven.configs = 6;
+    plan.oven.power_w = 900.0;
+    let r = 9.5;
+    // Depth so that the disc of radius 95 mm holds 1 kg.
+    let depth_mm = 1e9 / (998.0 * std::f64::consts::PI * 95.0 * 95.0);
+    plan.items = vec![FoodItem {
+        name: "water".into(),
+        food: "water".into(),
+        thickness_mm: depth_mm,
+        start_c: 10.0,
+    }];
+    let mut cells = 0;
+    for i in 0..w * h {
+        let (x, y) = ((i % w) as f64 - r + 0.5, (i / w) as f64 - r + 0.5);
+        if x * x + y * y <= r * r {
+            plan.food[i] = 1;
+            cells += 1;
+        }
+    }
+    let maps = evaluate::maps_for(&plan, None).unwrap();
+    let mats = evaluate::materials(&plan).unwrap();
+    let mass_cell = mats[0].density * (cell / 1000.0).powi(2) * depth_mm / 1000.0;
+    let mass = mass_cell * cells as f64;
+    for c in 0..plan.oven.configs {
+        let p: f64 = (0..w * h)
+            .map(|i| maps.thawed[c * w * h + i] * mass_cell * mats[0].reference_cp * 1000.0)
+            .sum();
+        assert!(
+            (p / plan.oven.power_w - 1.0).abs() < 0.05,
+            "config {c}: {p:.0} W (mass {mass:.3} kg)"
+        );
+    }
+    // Heat from 10 °C for 20 s in configuration 0, no losses, then read the power back.
+    let mut one = plan.clone();
+    one.zones = vec![Zone {
+        name: "all".into(),
+        min_c: 10.0,
+        max_c: 100.0,
+        weight: 1.0,
+        cap_c: None,
+    }];
+    let dwell = [20.0, 0.0, 0.0, 0.0, 0.0, 0.0];
+    let temps = evaluate::linear_prediction(&one, &maps, &dwell);
+    let mean_rise: f64 = (0..w * h)
+        .filter(|&i| one.food[i] > 0)
+        .map(|i| temps[i] - 10.0)
+        .sum::<f64>()
+        / cells as f64;
+    let p_iec = 4187.0 * mass * mean_rise / 20.0;
+    assert!(
+        (p_iec / plan.oven.power_w - 1.0).abs() < 0.05,
+        "IEC reading {p_iec:.0} W"
+    );
+}
+
+/// The plan pipeline's dwell is the solver's optimum for the same rates and bands.
+#[test]
+fn plan_solve_matches_a_direct_solve() {
+    let mut plan = demos::demo("side-by-side").unwrap();
+    plan.oven.quantum_s = 0.0;
+    let eval = evaluate::evaluate(&plan, None, Options::default()).unwrap();
+    let maps = evaluate::maps_for(&plan, None).unwrap();
+    let n = plan.tray.cells();
+    let rows: Vec<usize> = (0..n).filter(|&i| plan.zone[i] > 0).collect();
+    let loaded = &maps.loaded;
+    let data: Vec<f64> = rows
+        .iter()
+        .flat_map(|&i| (0..maps.configs).map(move |c| loaded[c * n + i]))
+        .collect();
+    let rates = Rates::from_row_major(rows.len(), maps.configs, &data).unwrap();
+    let z = |i: usize| &plan.zones[plan.zone[i] as usize - 1];
+    let s = |i: usize| plan.items[plan.food[i] as usize - 1].start_c;
+    let mut spec = Spec::band(
+        rows.iter().map(|&i| z(i).min_c - s(i)).collect(),
+        rows.iter().map(|&i| z(i).max_c - s(i)).collect(),
+        maps.configs,
+    );
+    spec.weights = rows.iter().map(|&i| z(i).weight).collect();
+    spec.budget = plan.oven.budget_s;
+    let direct = DwellSolver::new(rates).solve(&spec).unwrap();
+    for (a, b) in eval.dwell.iter().zip(&direct.dwell) {
+        assert!((a - b).abs() < 1e-9 * (1.0 + b.abs()), "{a} vs {b}");
+    }
+}
+
+/// Rule of thumb of the trade (common practice, no published source): a realistic tray whose
+/// targets are reachable lands every zone within 5 K of its band; without steering it does worse.
+#[test]
+fn reachable_demo_lands_within_5_k_and_beats_the_baseline() {
+    let plan = demos::demo("side-by-side").unwrap();
+    let eval = evaluate::evaluate(&plan, None, Options::default()).unwrap();
+    for (zone, s) in plan.zones.iter().zip(&eval.zones) {
+        assert!(s.rms_linear <= 5.0, "{}: {:.2} K", zone.name, s.rms_linear);
+    }
+    let plan_rms = (eval
+        .error_linear
+        .iter()
+        .filter(|v| v.is_finite())
+        .map(|v| v * v)
+        .sum::<f64>()
+        / eval.error_linear.iter().filter(|v| v.is_finite()).count() as f64)
+        .sqrt();
+    assert!(
+        eval.baseline.rms_linear > 3.0 * plan_rms,
+        "baseline {:.1} K vs plan {plan_rms:.1} K",
+        eval.baseline.rms_linear
+    );
+    assert!(eval.warnings.iter().any(|w| w.contains("illustrative")));
+    assert_eq!(eval.cautions.len(), 5);
+}
+
+#[test]
+fn every_demo_evaluates_and_reports_verdicts() {
+    let mut ev = Evaluator::new();
+    for name in demos::DEMOS {
+        let plan = demos::demo(name).unwrap();
+        let eval = ev.evaluate(&plan, None, Options { refine: true }).unwrap();
+        assert_eq!(eval.items.len(), plan.items.len());
+        assert!(eval.total_s <= plan.oven.budget_s.unwrap() + 1e-9);
+        assert!(
+            eval.course
+                .after_standing
+                .iter()
+                .all(|t| t.is_nan() || (-40.0..=100.0 + 1e-9).contains(t))
+        );
+        let rob = traycast_plan::robustness::robustness(&plan, None, &eval.dwell).unwrap();
+        assert_eq!(rob.shifted.len(), 4);
+        assert!(rob.worst_rms >= rob.typical_rms);
+    }
+}
+
+#[test]
+fn field_model_is_deterministic_and_follows_the_load() {
+    let plan = demos::demo("lunch-tray").unwrap();
+    let a = evaluate::maps_for(&plan, None).unwrap();
+    assert_eq!(a, evaluate::maps_for(&plan, None).unwrap());
+    let mut moved = plan.clone();
+    moved.food.rotate_right(1);
+    moved.zone.rotate_right(1);
+    assert_ne!(a.thawed, evaluate::maps_for(&moved, None).unwrap().thawed);
+    // Frozen food absorbs far less: the as-loaded map of the frozen demo is below its thawed map.
+    let frozen = demos::demo("frozen-portion").unwrap();
+    let m = evaluate::maps_for(&frozen, None).unwrap();
+    let (l, t): (f64, f64) = (m.loaded.iter().sum(), m.thawed.iter().sum());
+    assert!(l < 0.3 * t, "{l} vs {t}");
+}
+
+#[test]
+fn plan_validation_names_the_field() {
+    let mut p = demos::demo("side-by-side").unwrap();
+    p.zones[1].max_c = 10.0;
+    assert_eq!(p.validate().unwrap_err().place, "zones[1].max_c");
+    let mut p = demos::demo("side-by-side").unwrap();
+    p.items[0].food = "unobtainium".into();
+    assert!(
+        p.validate()
+            .unwrap_err()
+            .message
+            .contains("not a catalogue food")
+    );
+    let mut p = demos::demo("side-by-side").unwrap();
+    p.zone[0] = 1;
+    assert!(p.validate().unwrap_err().message.contains("empty cell"));
+}
