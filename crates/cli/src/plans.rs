@@ -1,0 +1,306 @@
+//! Plan commands: demo, solve, simulate, link, open, library.
+
+use crate::error::CliError;
+use crate::progress::Progress;
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+use traycast_plan::evaluate::{self, Diagnosis, Evaluation, Options};
+use traycast_plan::library::MapLibrary;
+use traycast_plan::model::Plan;
+use traycast_plan::{PlanError, demos, wire};
+
+fn read(path: &Path) -> Result<String, CliError> {
+    std::fs::read_to_string(path).map_err(|e| CliError::at(path, 0, 0, format!("cannot read: {e}")))
+}
+
+fn write(path: &Path, text: &str) -> Result<(), CliError> {
+    std::fs::write(path, text).map_err(|e| CliError::at(path, 0, 0, format!("cannot write: {e}")))
+}
+
+fn in_file(path: &Path) -> impl Fn(PlanError) -> CliError + '_ {
+    move |e| {
+        let line = e
+            .place
+            .strip_prefix("line ")
+            .and_then(|l| l.parse().ok())
+            .unwrap_or(0);
+        if line > 0 {
+            CliError::at(path, line, 0, &e.message)
+        } else {
+            CliError::at(path, 0, 0, &e)
+        }
+    }
+}
+
+/// Reads a plan JSON file.
+pub fn load_plan(path: &Path) -> Result<Plan, CliError> {
+    wire::from_json(&read(path)?).map_err(in_file(path))
+}
+
+/// Reads a map library (CSV or JSON, by content).
+pub fn load_library(path: &Path) -> Result<MapLibrary, CliError> {
+    let text = read(path)?;
+    let lib = if text.trim_start().starts_with('{') {
+        MapLibrary::from_json(&text)
+    } else {
+        MapLibrary::from_csv(&text)
+    };
+    lib.map_err(in_file(path))
+}
+
+/// `traycast demo [NAME --out FILE]`.
+pub fn demo(name: Option<&str>, out: Option<&Path>) -> Result<(), CliError> {
+    let Some(name) = name else {
+        for d in demos::DEMOS {
+            println!("{d}");
+        }
+        return Ok(());
+    };
+    let plan = demos::demo(name).ok_or_else(|| {
+        CliError(format!(
+            "no demo named '{name}' (try: {})",
+            demos::DEMOS.join(", ")
+        ))
+    })?;
+    match out {
+        Some(path) => write(path, &wire::to_json(&plan)),
+        None => {
+            println!("{}", wire::to_json(&plan));
+            Ok(())
+        }
+    }
+}
+
+fn evaluate_file(
+    plan_path: &Path,
+    library: Option<&PathBuf>,
+    refine: bool,
+) -> Result<(Plan, Evaluation), CliError> {
+    let plan = load_plan(plan_path)?;
+    let lib = library.map(|p| load_library(p)).transpose()?;
+    let _progress = Progress::after_a_second("evaluating the plan");
+    let eval = evaluate::evaluate(&plan, lib.as_ref(), Options { refine })
+        .map_err(|e| CliError::at(plan_path, 0, 0, e))?;
+    Ok((plan, eval))
+}
+
+fn report(plan: &Plan, e: &Evaluation) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "{}", plan.name);
+    let _ = writeln!(
+        s,
+        "Total heating {:.1} s in {} steps, then {:.0} s standing ({:?})",
+        e.total_s,
+        e.schedule.steps.len(),
+        plan.oven.standing_s,
+        e.status
+    );
+    let _ = writeln!(s, "\nDwell per configuration (s):");
+    for (j, d) in e.dwell.iter().enumerate().filter(|(_, d)| **d > 0.0) {
+        let _ = writeln!(s, "  {j:>4}  {d:>8.1}");
+    }
+    let _ = writeln!(
+        s,
+        "\n{:<28} {:>9} {:>9} {:>9} {:>9}",
+        "zone", "in band", "in band", "RMS off", "RMS off"
+    );
+    let _ = writeln!(
+        s,
+        "{:<28} {:>9} {:>9} {:>9} {:>9}",
+        "", "linear", "simul.", "linear K", "simul. K"
+    );
+    for (z, r) in plan.zones.iter().zip(&e.zones) {
+        let _ = writeln!(
+            s,
+            "{:<28} {:>8.0}% {:>8.0}% {:>9.1} {:>9.1}",
+            z.name,
+            100.0 * r.coverage_linear,
+            100.0 * r.coverage_simulated,
+            r.rms_linear,
+            r.rms_simulated
+        );
+        match &r.diagnosis {
+            Some(Diagnosis::Physics(m)) => {
+                let _ = writeln!(s, "    physics: {m}");
+            }
+            Some(Diagnosis::Setting(m)) => {
+                let _ = writeln!(s, "    setting: {m}");
+            }
+            None => {}
+        }
+    }
+    let _ = writeln!(
+        s,
+        "\n{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  rule",
+        "food item (after standing)", "min °C", "mean", "max", "verdict", "margin K"
+    );
+    for (it, r) in plan.items.iter().zip(&e.items) {
+        let v = &r.verdict;
+        let _ = writeln!(
+            s,
+            "{:<28} {:>7.1} {:>7.1} {:>7.1}  {:<8} {:>8.1}  {}{}",
+            it.name,
+            r.min,
+            r.mean,
+            r.max,
+            if v.safe { "meets" } else { "FAILS" },
+            v.margin,
+            v.binding.source,
+            if v.short_stand {
+                " (standing shorter than the rule assumes)"
+            } else {
+                ""
+            }
+        );
+    }
+    let _ = writeln!(
+        s,
+        "\nUnsteered baseline: {:.0} s, {:.0}% of targeted cells in band, RMS {:.1} K off (linear)",
+        e.baseline.seconds,
+        100.0 * e.baseline.coverage_linear,
+        e.baseline.rms_linear
+    );
+    if let Some(r) = &e.refinement {
+        let _ = writeln!(
+            s,
+            "Refinement: RMS after standing {:.2} → {:.2} K ({})",
+            r.rms_before,
+            r.rms_after,
+            if r.kept { "kept" } else { "no gain, not kept" }
+        );
+    }
+    for w in &e.warnings {
+        let _ = writeln!(s, "Note: {w}");
+    }
+    let _ = writeln!(s, "\nCautions:");
+    for c in e.cautions {
+        let _ = writeln!(s, "  - {c}");
+    }
+    s
+}
+
+fn json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
+    serde_json::json!({
+        "plan": plan.name,
+        "dwell_s": e.dwell,
+        "total_s": e.total_s,
+        "status": e.status.as_str(),
+        "kkt_residual": e.kkt_residual,
+        "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
+            "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
+            "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
+            "diagnosis": r.diagnosis.as_ref().map(|d| match d { Diagnosis::Physics(m) => format!("physics: {m}"), Diagnosis::Setting(m) => format!("setting: {m}") }),
+        })).collect::<Vec<_>>(),
+        "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
+            "name": i.name, "min_c": r.min, "mean_c": r.mean, "max_c": r.max, "safe": r.verdict.safe,
+            "margin_k": r.verdict.margin, "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
+        })).collect::<Vec<_>>(),
+        "baseline": { "seconds": e.baseline.seconds, "rms_linear_k": e.baseline.rms_linear, "coverage_linear": e.baseline.coverage_linear },
+        "warnings": e.warnings,
+        "cautions": e.cautions,
+    })
+}
+
+/// `traycast solve PLAN [--library FILE] [--format table|json] [--refine]`.
+pub fn solve(
+    plan: &Path,
+    library: Option<&PathBuf>,
+    as_json: bool,
+    refine: bool,
+) -> Result<(), CliError> {
+    let (p, e) = evaluate_file(plan, library, refine)?;
+    if as_json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&json(&p, &e)).expect("serialises")
+        );
+    } else {
+        print!("{}", report(&p, &e));
+    }
+    Ok(())
+}
+
+/// `traycast simulate PLAN --csv OUT [--schedule OUT]`: time course per food item, and the schedule.
+pub fn simulate(
+    plan: &Path,
+    library: Option<&PathBuf>,
+    csv: &Path,
+    schedule: Option<&PathBuf>,
+) -> Result<(), CliError> {
+    let (p, e) = evaluate_file(plan, library, false)?;
+    let mut out = String::new();
+    for c in e.cautions {
+        let _ = writeln!(out, "# {c}");
+    }
+    out.push_str("time_s,item,min_c,mean_c,max_c\n");
+    for (t, time) in e.course.times.iter().enumerate() {
+        for (k, it) in p.items.iter().enumerate() {
+            let c = &e.course.items[k];
+            let name = if it.name.contains([',', '"']) {
+                format!("\"{}\"", it.name.replace('"', "\"\""))
+            } else {
+                it.name.clone()
+            };
+            let _ = writeln!(
+                out,
+                "{time:.1},{name},{:.2},{:.2},{:.2}",
+                c.min[t], c.mean[t], c.max[t]
+            );
+        }
+    }
+    write(csv, &out)?;
+    if let Some(path) = schedule {
+        write(path, &wire::schedule_csv(&p, &e.schedule))?;
+    }
+    eprintln!(
+        "wrote {} frames for {} food items to {}",
+        e.course.times.len(),
+        p.items.len(),
+        csv.display()
+    );
+    Ok(())
+}
+
+/// `traycast link PLAN`.
+pub fn link(plan: &Path) -> Result<(), CliError> {
+    println!("{}", wire::to_link(&load_plan(plan)?));
+    Ok(())
+}
+
+/// `traycast open LINK --out PLAN`.
+pub fn open(link: &str, out: Option<&Path>) -> Result<(), CliError> {
+    let fragment = link.rsplit_once('#').map_or(link, |(_, f)| f);
+    let plan = wire::from_link(fragment).map_err(|e| CliError(e.to_string()))?;
+    match out {
+        Some(path) => write(path, &wire::to_json(&plan)),
+        None => {
+            println!("{}", wire::to_json(&plan));
+            Ok(())
+        }
+    }
+}
+
+/// `traycast library check FILE` and `traycast library convert FILE --out OUT`.
+pub fn library(convert: bool, file: &Path, out: Option<&Path>) -> Result<(), CliError> {
+    let lib = load_library(file)?;
+    if !convert {
+        println!(
+            "{}: {} recorded loads, {} configurations, {} × {} cells of {} mm — valid",
+            lib.name,
+            lib.loads.len(),
+            lib.configs,
+            lib.width,
+            lib.height,
+            lib.cell_mm
+        );
+        return Ok(());
+    }
+    let out =
+        out.ok_or_else(|| CliError("library convert needs --out FILE (.json or .csv)".into()))?;
+    let text = if out.extension().is_some_and(|e| e == "csv") {
+        lib.to_csv()
+    } else {
+        lib.to_json()
+    };
+    write(out, &text)
+}
