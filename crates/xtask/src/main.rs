@@ -5,6 +5,7 @@
 
 mod bench;
 mod run;
+mod web;
 
 use run::{cargo, ensure_wasm_target, root};
 use std::process::ExitCode;
@@ -15,17 +16,24 @@ commands:
   test           fmt check, clippy (warnings are errors), wasm32 build of the leaf crates, all tests
   bench-solver   criterion benchmarks of the dwell solver, plus SciPy's nnls side by side
                  (--reuse: skip criterion, read its last results)
-  serve          start the workbench on the built-in demo (not built yet: prints what exists)";
+  serve          build the workbench and serve it on 127.0.0.1 (opens on the built-in demo)
+  e2e            build the workbench and run the browser tests only";
 
 /// Library crates that must build for wasm32-unknown-unknown (no I/O, no browser knowledge).
-pub const WASM_CRATES: &[&str] = &["traycast-solver", "traycast-thermal", "traycast-plan"];
+pub const WASM_CRATES: &[&str] = &[
+    "traycast-solver",
+    "traycast-thermal",
+    "traycast-plan",
+    "traycast-web",
+];
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let result = match args.first().map(String::as_str) {
         Some("test") => test(),
         Some("bench-solver") => bench::solver(args.iter().any(|a| a == "--reuse")),
-        Some("serve") => serve(),
+        Some("serve") => web::serve(),
+        Some("e2e") => web::e2e(),
         _ => {
             eprintln!("{USAGE}");
             return ExitCode::from(2);
@@ -65,15 +73,8 @@ fn test() -> Result<(), String> {
     // The fuzz target lives outside the workspace (cargo fuzz wants nightly); keep it compiling.
     cargo(&["check", "--manifest-path", "fuzz/Cargo.toml"])?;
     cargo(&["test", "--workspace"])?;
+    // The release bundle and the browser tests (installs Trunk, wasm-bindgen, Chromium if missing).
+    web::e2e()?;
     println!("xtask test: all checks passed");
-    Ok(())
-}
-
-fn serve() -> Result<(), String> {
-    println!(
-        "The browser workbench is not built yet; it arrives with the web crate.\n\
-         What exists today is the dwell solver and its command line, for example:\n  \
-         cargo run --release -p traycast-cli -- nnls --help"
-    );
     Ok(())
 }

@@ -1,0 +1,220 @@
+// Browser end-to-end tests: the real built workbench, served on 127.0.0.1, driven like a user in
+// Debian's Chromium through playwright-core. Run by `cargo xtask test` (or `cargo xtask e2e`).
+import { chromium } from 'playwright-core';
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join, dirname } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const URL = process.env.TRAYCAST_URL;
+const CLI = process.env.TRAYCAST_CLI;
+const ART = process.env.TRAYCAST_ARTIFACTS || '/tmp/traycast-e2e';
+const HERE = dirname(fileURLToPath(import.meta.url));
+mkdirSync(ART, { recursive: true });
+
+const browser = await chromium.launch({
+  executablePath: process.env.CHROMIUM || '/usr/bin/chromium',
+  args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+});
+
+const results = [];
+async function test(name, fn) {
+  const context = await browser.newContext({ viewport: { width: 1500, height: 1000 } });
+  const page = await context.newPage();
+  const errors = [];
+  page.on('pageerror', (e) => errors.push(e.message));
+  page.on('dialog', (d) => d.accept());
+  try {
+    await fn({ context, page });
+    if (errors.length) throw new Error('page errors: ' + errors.join('; '));
+    results.push([name, true]);
+    console.log(`ok   ${name}`);
+  } catch (e) {
+    results.push([name, false]);
+    console.log(`FAIL ${name}\n     ${e.stack || e}`);
+    await page.screenshot({ path: join(ART, `failed-${name.replace(/\W+/g, '-')}.png`), fullPage: true }).catch(() => {});
+  }
+  await context.close();
+}
+function assert(ok, msg) { if (!ok) throw new Error(msg); }
+async function ready(page) {
+  await page.waitForFunction(() => window.traycast && window.traycast.evaluation() !== null, null, { timeout: 30000 });
+}
+async function evaluation(page) { return page.evaluate(() => window.traycast.evaluation()); }
+async function plan(page) { return page.evaluate(() => window.traycast.plan()); }
+async function open(page, hash = '') { await page.goto(URL + hash); await ready(page); }
+const same = (a, b) => JSON.stringify(a) === JSON.stringify(b);
+
+// Cell centre in page coordinates.
+async function cellPoint(page, row, col) {
+  const box = await page.locator('#tray').boundingBox();
+  const p = await plan(page);
+  const px = box.width / p.tray.width;
+  return { x: box.x + (col + 0.5) * px, y: box.y + (row + 0.5) * px };
+}
+async function drag(page, from, to) {
+  const a = await cellPoint(page, ...from);
+  const b = await cellPoint(page, ...to);
+  await page.mouse.move(a.x, a.y);
+  await page.mouse.down();
+  await page.mouse.move(b.x, b.y, { steps: 8 });
+  await page.mouse.up();
+}
+
+await test('opens on the demo, solved, with dwell bars, numbers and cautions', async ({ page }) => {
+  await open(page);
+  const e = await evaluation(page);
+  assert(e.dwell_s.length === 48 && e.total_s > 0, 'dwells present');
+  assert(await page.locator('#dwell-bars').isVisible(), 'dwell bars visible');
+  assert((await page.locator('#summary .total').textContent()).includes('Heating'), 'summary shown');
+  const cautions = await page.locator('#cautions').textContent();
+  assert(cautions.includes('thermometer') && cautions.includes('local food code'), 'cautions visible');
+  await page.screenshot({ path: join(ART, 'workbench-demo.png'), fullPage: true });
+});
+
+await test('browser and command line agree on the same plan', async ({ page }) => {
+  await open(page);
+  const p = await plan(page);
+  const file = join(ART, 'browser-plan.json');
+  writeFileSync(file, JSON.stringify(p, null, 2));
+  const cli = JSON.parse(execFileSync(CLI, ['solve', file, '--format', 'json']).toString());
+  const web = await evaluation(page);
+  assert(cli.dwell_s.length === web.dwell_s.length, 'same number of configurations');
+  cli.dwell_s.forEach((d, j) => assert(d.toFixed(1) === web.dwell_s[j].toFixed(1), `dwell ${j}: cli ${d} web ${web.dwell_s[j]}`));
+  cli.items.forEach((it, k) => assert(it.safe === web.items[k].safe && it.min_c.toFixed(1) === web.items[k].min_c.toFixed(1), `verdict ${k}`));
+});
+
+await test('painting another target band changes the plan; undo restores it exactly', async ({ page }) => {
+  await open(page);
+  const before = await evaluation(page);
+  await page.locator('.zone .swatch').nth(1).click(); // the rice target
+  await drag(page, [2, 2], [6, 8]);                   // over the chicken compartment
+  const after = await evaluation(page);
+  assert(!same(before.dwell_s, after.dwell_s), 'dwell bars changed');
+  assert(!same(before.error_linear, after.error_linear), 'error map changed');
+  await page.locator('#undo').click();
+  const undone = await evaluation(page);
+  assert(same(before.dwell_s, undone.dwell_s) && same(before.error_linear, undone.error_linear), 'undo restores the numbers');
+});
+
+await test('painting food re-solves on new maps; an unreachable target gets a diagnosis', async ({ page }) => {
+  await open(page);
+  const before = await evaluation(page);
+  await page.locator('.item .swatch').nth(0).click();
+  await drag(page, [12, 14], [16, 17]);
+  const after = await evaluation(page);
+  assert(!same(before.dwell_s, after.dwell_s), 'new food re-solves');
+  // Make the broccoli target impossible next to the chicken's: 95–100 °C.
+  const min = page.locator('input[data-zone-min="2"]');
+  const max = page.locator('input[data-zone-max="2"]');
+  await max.fill('100'); await max.press('Enter');
+  await min.fill('98'); await min.press('Enter');
+  await page.waitForTimeout(100);
+  const e = await evaluation(page);
+  assert(e.zones[2].diagnosis && /physics|setting/.test(e.zones[2].diagnosis), 'diagnosis shown: ' + e.zones[2].diagnosis);
+  assert((await page.locator('#summary').textContent()).includes(e.zones[2].diagnosis.split(': ')[1].slice(0, 30)), 'diagnosis on the page');
+});
+
+await test('a copied link restores the identical plan in a fresh browser', async ({ page }) => {
+  await open(page);
+  await page.locator('.item .swatch').nth(2).click();
+  await drag(page, [16, 20], [16, 24]);
+  const p = await plan(page);
+  const href = await page.evaluate(() => location.href);
+  const fresh = await browser.newContext();
+  const other = await fresh.newPage();
+  await other.goto(href);
+  await ready(other);
+  assert(same(p, await plan(other)), 'identical plan');
+  await fresh.close();
+  for (const name of ['lunch-tray', 'frozen-portion', 'side-by-side']) {
+    await page.locator('header select').selectOption(name);
+    const len = (await page.evaluate(() => location.hash)).length;
+    assert(len < 1000, `${name} link is ${len} characters`);
+  }
+});
+
+await test('hostile links show a message and leave the autosaved plan untouched', async ({ page }) => {
+  await open(page);
+  await page.locator('.item .swatch').nth(1).click();
+  await drag(page, [16, 1], [16, 3]);
+  const saved = await plan(page);
+  const good = await page.evaluate(() => window.traycast.link());
+  const bad = ['#tc1.' + good.slice(4, 40), '#tc1.!!!not-base64!!!', '#tc9.' + good.slice(4), '#' + 'x'.repeat(200), '#tc1.eJzT0yMAAGTvBe8'];
+  for (const h of bad) {
+    await page.goto('about:blank');
+    await page.goto(URL + h);
+    await ready(page);
+    assert(await page.locator('#notice').isVisible(), 'message for ' + h.slice(0, 20));
+    assert(same(saved, await plan(page)), 'plan unchanged after ' + h.slice(0, 20));
+  }
+  await page.goto('about:blank');
+  await page.goto(URL);
+  await ready(page);
+  assert(same(saved, await plan(page)), 'autosave survives');
+});
+
+await test('50 random edits survive a reload', async ({ page }) => {
+  await open(page);
+  for (let k = 0; k < 50; k++) {
+    await page.locator(k % 2 ? '.item .swatch' : '.zone .swatch').nth(k % 3).click();
+    const r = (k * 7) % 18, c = (k * 11) % 28;
+    await drag(page, [r, c], [r, c]);
+  }
+  const p = await plan(page);
+  await page.reload();
+  await ready(page);
+  assert(same(p, await plan(page)), 'restored after reload');
+});
+
+await test('after one visit the workbench starts and solves offline', async ({ context, page }) => {
+  await open(page);
+  await page.waitForFunction(() => navigator.serviceWorker.controller !== null || navigator.serviceWorker.ready.then(() => true), null, { timeout: 15000 });
+  await page.reload();
+  await ready(page);
+  await context.setOffline(true);
+  await page.reload();
+  await ready(page);
+  const e = await evaluation(page);
+  assert(e.total_s > 0, 'solved offline');
+  await context.setOffline(false);
+});
+
+await test('heating maps import through the file picker; a malformed file is refused with its line', async ({ page }) => {
+  await open(page);
+  await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures/malformed-maps.csv'));
+  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('refused'));
+  const msg = await page.locator('#notice').textContent();
+  assert(msg.includes('line 8'), 'line number in: ' + msg);
+  await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures/measured-maps.csv'));
+  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('imported'));
+});
+
+await test('a food named like markup shows literally and runs nothing', async ({ page }) => {
+  await open(page);
+  await page.evaluate(() => { window.__xss = false; });
+  const name = page.locator('.item input.name').first();
+  await name.fill('<img src=x onerror="window.__xss=true">');
+  await name.press('Enter');
+  await page.waitForTimeout(200);
+  assert((await page.locator('#summary').textContent()).includes('<img src=x'), 'shown as text');
+  assert(!(await page.evaluate(() => window.__xss)), 'no script ran');
+  assert((await page.locator('#summary img').count()) === 0, 'no element created');
+});
+
+await test('°C/°F toggle converts displayed values by F = C·9/5 + 32', async ({ page }) => {
+  await open(page);
+  const e = await evaluation(page);
+  const c = e.items[0].min_c;
+  await page.locator('#unit').click();
+  const cell = await page.locator('table.items tbody tr').first().locator('td').nth(1).textContent();
+  const f = parseFloat(cell);
+  assert(cell.includes('°F') && Math.abs(f - (c * 9 / 5 + 32)) < 0.06, `${cell} vs ${c} °C`);
+  await page.screenshot({ path: join(ART, 'workbench-fahrenheit.png'), fullPage: true });
+});
+
+await browser.close();
+const passed = results.filter((r) => r[1]).length;
+const failed = results.length - passed;
+console.log(`\ne2e: ${passed} passed, ${failed} failed`);
+process.exit(failed ? 1 : 0);

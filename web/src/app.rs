@@ -1,0 +1,598 @@
+//! The workbench: one screen with the tray editor, live views and the plan's numbers.
+
+use crate::draw;
+use crate::storage;
+use crate::surface;
+use crate::units::Unit;
+use leptos::html;
+use leptos::prelude::*;
+use traycast_plan::evaluate::{Diagnosis, Evaluation, Evaluator, Options};
+use traycast_plan::library::MapLibrary;
+use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
+use traycast_plan::{demos, wire};
+use traycast_thermal::catalogue::CATALOGUE;
+use traycast_thermal::safety::CAUTIONS;
+use wasm_bindgen::JsCast;
+
+/// What a stroke paints.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Tool {
+    Food(usize),
+    Zone(usize),
+    EraseFood,
+    EraseZone,
+}
+
+fn mark(name: &str) {
+    if let Some(p) = web_sys::window().and_then(|w| w.performance()) {
+        let _ = p.mark(name);
+    }
+}
+
+fn measure(name: &str, from: &str) {
+    if let Some(p) = web_sys::window().and_then(|w| w.performance()) {
+        let _ = p.measure_with_start_mark(name, from);
+    }
+}
+
+/// Paints `tool` on a square brush (or a rectangle from `a` to `b`) and returns whether anything changed.
+fn paint(plan: &mut Plan, tool: Tool, a: usize, b: usize, brush: usize) -> bool {
+    let w = plan.tray.width as i64;
+    let h = plan.tray.height as i64;
+    let (ar, ac) = (a as i64 / w, a as i64 % w);
+    let (br, bc) = (b as i64 / w, b as i64 % w);
+    let r = (brush as i64 - 1) / 2;
+    let (r0, r1, c0, c1) = if a == b {
+        (
+            ar - r,
+            ar + r + (brush as i64 - 1) % 2,
+            ac - r,
+            ac + r + (brush as i64 - 1) % 2,
+        )
+    } else {
+        (ar.min(br), ar.max(br), ac.min(bc), ac.max(bc))
+    };
+    let mut changed = false;
+    for row in r0.max(0)..=r1.min(h - 1) {
+        for col in c0.max(0)..=c1.min(w - 1) {
+            let i = (row * w + col) as usize;
+            let (food, zone) = (plan.food[i], plan.zone[i]);
+            match tool {
+                Tool::Food(k) => plan.food[i] = k as u8 + 1,
+                Tool::Zone(k) => {
+                    if plan.food[i] > 0 {
+                        plan.zone[i] = k as u8 + 1;
+                    }
+                }
+                Tool::EraseFood => {
+                    plan.food[i] = 0;
+                    plan.zone[i] = 0;
+                }
+                Tool::EraseZone => plan.zone[i] = 0,
+            }
+            changed |= food != plan.food[i] || zone != plan.zone[i];
+        }
+    }
+    changed
+}
+
+fn download(name: &str, mime: &str, text: &str) {
+    let parts = js_sys::Array::of1(&wasm_bindgen::JsValue::from_str(text));
+    let props = web_sys::BlobPropertyBag::new();
+    props.set_type(mime);
+    if let Ok(blob) = web_sys::Blob::new_with_str_sequence_and_options(&parts, &props)
+        && let Ok(url) = web_sys::Url::create_object_url_with_blob(&blob)
+    {
+        download_url(name, &url);
+        let _ = web_sys::Url::revoke_object_url(&url);
+    }
+}
+
+fn download_url(name: &str, url: &str) {
+    let Some(doc) = web_sys::window().and_then(|w| w.document()) else {
+        return;
+    };
+    if let Ok(a) = doc.create_element("a") {
+        let a: web_sys::HtmlAnchorElement = a.unchecked_into();
+        a.set_href(url);
+        a.set_download(name);
+        a.click();
+    }
+}
+
+fn num(ev: &leptos::ev::Event) -> Option<f64> {
+    event_target_value(ev)
+        .trim()
+        .parse::<f64>()
+        .ok()
+        .filter(|v| v.is_finite())
+}
+
+/// The workbench component.
+#[component]
+pub fn App() -> impl IntoView {
+    let start = storage::startup();
+    let plan = RwSignal::new(start.plan);
+    let notice = RwSignal::new(start.message);
+    let unit = RwSignal::new(Unit::Celsius);
+    let tool = RwSignal::new(Tool::Food(0));
+    let brush = RwSignal::new(1usize);
+    let rect = RwSignal::new(false);
+    let library: RwSignal<Option<MapLibrary>> = RwSignal::new(None);
+    let eval: RwSignal<Option<Result<Evaluation, String>>> = RwSignal::new(None);
+    let hover = RwSignal::new(None::<usize>);
+    let link_len = RwSignal::new(0usize);
+    let copied = RwSignal::new(false);
+    let undo = StoredValue::new(Vec::<Plan>::new());
+    let redo = StoredValue::new(Vec::<Plan>::new());
+    let stroke = StoredValue::new(None::<usize>);
+    let evaluator = StoredValue::new_local(Evaluator::new());
+
+    let tray_ref = NodeRef::<html::Canvas>::new();
+    let lin_ref = NodeRef::<html::Canvas>::new();
+    let sim_ref = NodeRef::<html::Canvas>::new();
+    let err_ref = NodeRef::<html::Canvas>::new();
+    let bars_ref = NodeRef::<html::Canvas>::new();
+    let course_ref = NodeRef::<html::Canvas>::new();
+
+    // Every edit: evaluate, autosave, update the link, redraw.
+    Effect::new(move |_| {
+        let p = plan.get();
+        let lib = library.get();
+        mark("tc-eval-start");
+        let mut result = None;
+        evaluator
+            .update_value(|ev| result = Some(ev.evaluate(&p, lib.as_ref(), Options::default())));
+        let result = result.expect("evaluated").map_err(|e| e.to_string());
+        measure("tc-solve-and-simulate", "tc-eval-start");
+        surface::publish(&p, result.as_ref().ok());
+        storage::save(&p);
+        link_len.set(storage::set_fragment(&p));
+        eval.set(Some(result));
+    });
+    Effect::new(move |_| {
+        let p = plan.get();
+        let u = unit.get();
+        let px = draw::cell_px(&p, 560.0);
+        if let Some(c) = tray_ref.get() {
+            draw::editor(&c, &p, px);
+        }
+        eval.with(|e| {
+            // Right after an edit the evaluation may still describe the previous plan (another tray
+            // size): draw it only once it matches; the evaluation effect will call again.
+            if let Some(Ok(e)) = e
+                .as_ref()
+                .filter(|e| e.as_ref().is_ok_and(|e| e.linear.len() == p.tray.cells()))
+            {
+                let hp = draw::cell_px(&p, 300.0);
+                if let Some(c) = lin_ref.get() {
+                    draw::heatmap(&c, &p, &e.linear, hp, false, u, "linear prediction");
+                }
+                if let Some(c) = sim_ref.get() {
+                    draw::heatmap(
+                        &c,
+                        &p,
+                        &e.course
+                            .after_standing
+                            .iter()
+                            .enumerate()
+                            .map(|(i, t)| if p.food[i] > 0 { *t } else { f64::NAN })
+                            .collect::<Vec<_>>(),
+                        hp,
+                        false,
+                        u,
+                        "simulated after standing",
+                    );
+                }
+                if let Some(c) = err_ref.get() {
+                    draw::heatmap(
+                        &c,
+                        &p,
+                        &e.error_simulated,
+                        hp,
+                        true,
+                        u,
+                        "distance outside the band",
+                    );
+                }
+                if let Some(c) = bars_ref.get() {
+                    draw::dwell_bars(&c, e);
+                }
+                if let Some(c) = course_ref.get() {
+                    draw::time_course(&c, &p, e, u);
+                }
+            }
+        });
+        measure("tc-frame", "tc-eval-start");
+    });
+
+    let edit = move |f: &dyn Fn(&mut Plan)| {
+        let before = plan.get_untracked();
+        let mut after = before.clone();
+        f(&mut after);
+        if after != before {
+            undo.update_value(|u| u.push(before));
+            redo.update_value(|r| r.clear());
+            plan.set(after);
+        }
+    };
+    let do_undo = move || {
+        let mut prev = None;
+        undo.update_value(|u| prev = u.pop());
+        if let Some(prev) = prev {
+            redo.update_value(|r| r.push(plan.get_untracked()));
+            plan.set(prev);
+        }
+    };
+    let do_redo = move || {
+        let mut next = None;
+        redo.update_value(|r| next = r.pop());
+        if let Some(next) = next {
+            undo.update_value(|u| u.push(plan.get_untracked()));
+            plan.set(next);
+        }
+    };
+
+    let cell_at = move |ev: &web_sys::PointerEvent| -> Option<usize> {
+        let p = plan.get_untracked();
+        let px = draw::cell_px(&p, 560.0);
+        let (c, r) = (
+            (ev.offset_x() as f64 / px) as usize,
+            (ev.offset_y() as f64 / px) as usize,
+        );
+        (c < p.tray.width && r < p.tray.height).then(|| r * p.tray.width + c)
+    };
+    let on_down = move |ev: web_sys::PointerEvent| {
+        let Some(i) = cell_at(&ev) else { return };
+        mark("tc-input");
+        if let Some(t) = ev
+            .target()
+            .and_then(|t| t.dyn_into::<web_sys::Element>().ok())
+        {
+            let _ = t.set_pointer_capture(ev.pointer_id());
+        }
+        undo.update_value(|u| u.push(plan.get_untracked()));
+        redo.update_value(|r| r.clear());
+        stroke.set_value(Some(i));
+        if !rect.get_untracked() {
+            let (t, b) = (tool.get_untracked(), brush.get_untracked());
+            plan.update(|p| {
+                paint(p, t, i, i, b);
+            });
+        }
+    };
+    let on_move = move |ev: web_sys::PointerEvent| {
+        let cell = cell_at(&ev);
+        hover.set(cell);
+        let (Some(i), Some(_)) = (cell, stroke.get_value()) else {
+            return;
+        };
+        if rect.get_untracked() {
+            return;
+        }
+        mark("tc-input");
+        let (t, b) = (tool.get_untracked(), brush.get_untracked());
+        let mut p = plan.get_untracked();
+        if paint(&mut p, t, i, i, b) {
+            plan.set(p);
+        }
+    };
+    let on_up = move |ev: web_sys::PointerEvent| {
+        if let (Some(a), true) = (stroke.get_value(), rect.get_untracked())
+            && let Some(b) = cell_at(&ev)
+        {
+            mark("tc-input");
+            let t = tool.get_untracked();
+            plan.update(|p| {
+                paint(p, t, a, b, 1);
+            });
+        }
+        stroke.set_value(None);
+    };
+
+    // Keyboard shortcuts.
+    let keys = window_event_listener(leptos::ev::keydown, move |ev: web_sys::KeyboardEvent| {
+        let target_is_input = ev
+            .target()
+            .and_then(|t| t.dyn_into::<web_sys::HtmlInputElement>().ok())
+            .is_some();
+        if target_is_input {
+            return;
+        }
+        let ctrl = ev.ctrl_key() || ev.meta_key();
+        match ev.key().as_str() {
+            "z" if ctrl && ev.shift_key() => do_redo(),
+            "z" | "Z" if ctrl => do_undo(),
+            "y" if ctrl => do_redo(),
+            "[" => brush.update(|b| *b = (*b).saturating_sub(1).max(1)),
+            "]" => brush.update(|b| *b = (*b + 1).min(9)),
+            "e" => tool.set(Tool::EraseFood),
+            "r" => rect.update(|r| *r = !*r),
+            k if k.len() == 1 && k.as_bytes()[0].is_ascii_digit() && k != "0" => {
+                let n = (k.as_bytes()[0] - b'1') as usize;
+                if n < plan.with_untracked(|p| p.items.len()) {
+                    tool.set(Tool::Food(n));
+                }
+            }
+            _ => {}
+        }
+    });
+    on_cleanup(move || keys.remove());
+
+    let n_items = Memo::new(move |_| plan.with(|p| p.items.len()));
+    let n_zones = Memo::new(move |_| plan.with(|p| p.zones.len()));
+
+    let item_rows = move || {
+        (0..n_items.get())
+            .map(|k| {
+                let colour = draw::FOOD_COLOURS[k % draw::FOOD_COLOURS.len()];
+                view! {
+                    <div class="row item" class:active=move || tool.get() == Tool::Food(k)>
+                        <button class="swatch" style=format!("background:{colour}") title="Paint this food (key 1–9)" on:click=move |_| tool.set(Tool::Food(k))></button>
+                        <input class="name" aria-label="food item name" prop:value=move || plan.with(|p| p.items.get(k).map(|i| i.name.clone()).unwrap_or_default())
+                            on:change=move |ev| { let v = event_target_value(&ev); edit(&|p| if let Some(i) = p.items.get_mut(k) { i.name = v.clone(); }); } />
+                        <select aria-label="catalogue food" on:change=move |ev| { let v = event_target_value(&ev); edit(&|p| if let Some(i) = p.items.get_mut(k) { i.food = v.clone(); }); }>
+                            {CATALOGUE.iter().map(|f| { let id = f.id; view! { <option value=id selected=move || plan.with(|p| p.items.get(k).is_some_and(|i| i.food == id))>{f.name}</option> } }).collect_view()}
+                        </select>
+                        <label>"mm"<input class="short" type="number" step="1" prop:value=move || plan.with(|p| p.items.get(k).map(|i| i.thickness_mm.to_string()).unwrap_or_default())
+                            on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| if let Some(i) = p.items.get_mut(k) { i.thickness_mm = v; }); } /></label>
+                        <label>{move || format!("start {}", unit.get().symbol())}<input class="short" type="number" step="1" prop:value=move || plan.with(|p| p.items.get(k).map(|i| format!("{:.1}", unit.get().temp(i.start_c))).unwrap_or_default())
+                            on:change=move |ev| if let Some(v) = num(&ev) { let c = unit.get_untracked().to_celsius(v); edit(&|p| if let Some(i) = p.items.get_mut(k) { i.start_c = c; }); } /></label>
+                    </div>
+                }
+            })
+            .collect_view()
+    };
+    let zone_rows = move || {
+        (0..n_zones.get())
+            .map(|k| {
+                let colour = draw::ZONE_COLOURS[k % draw::ZONE_COLOURS.len()];
+                let field = move |get: fn(&Zone) -> f64| move || plan.with(|p| p.zones.get(k).map(|z| format!("{:.1}", unit.get().temp(get(z)))).unwrap_or_default());
+                view! {
+                    <div class="row zone" class:active=move || tool.get() == Tool::Zone(k)>
+                        <button class="swatch" style=format!("background:{colour}") title="Paint this target" on:click=move |_| tool.set(Tool::Zone(k))></button>
+                        <input class="name" aria-label="zone name" prop:value=move || plan.with(|p| p.zones.get(k).map(|z| z.name.clone()).unwrap_or_default())
+                            on:change=move |ev| { let v = event_target_value(&ev); edit(&|p| if let Some(z) = p.zones.get_mut(k) { z.name = v.clone(); }); } />
+                        <label>"min"<input class="short" type="number" data-zone-min=k prop:value=field(|z| z.min_c)
+                            on:change=move |ev| if let Some(v) = num(&ev) { let c = unit.get_untracked().to_celsius(v); edit(&|p| if let Some(z) = p.zones.get_mut(k) { z.min_c = c; z.max_c = z.max_c.max(c); }); } /></label>
+                        <label>"max"<input class="short" type="number" data-zone-max=k prop:value=field(|z| z.max_c)
+                            on:change=move |ev| if let Some(v) = num(&ev) { let c = unit.get_untracked().to_celsius(v); edit(&|p| if let Some(z) = p.zones.get_mut(k) { z.max_c = c; z.min_c = z.min_c.min(c); }); } /></label>
+                        <label>"weight"<input class="short" type="number" step="0.5" prop:value=move || plan.with(|p| p.zones.get(k).map(|z| z.weight.to_string()).unwrap_or_default())
+                            on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| if let Some(z) = p.zones.get_mut(k) { z.weight = v.clamp(0.001, 1000.0); }); } /></label>
+                        <label>"cap"<input class="short" type="number" placeholder="none" prop:value=move || plan.with(|p| p.zones.get(k).and_then(|z| z.cap_c).map(|c| format!("{:.1}", unit.get().temp(c))).unwrap_or_default())
+                            on:change=move |ev| { let v = num(&ev).map(|v| unit.get_untracked().to_celsius(v)); edit(&|p| if let Some(z) = p.zones.get_mut(k) { z.cap_c = v; }); } /></label>
+                    </div>
+                }
+            })
+            .collect_view()
+    };
+
+    let summary = move || {
+        eval.with(|e| match e {
+            None => view! { <p>"Solving…"</p> }.into_any(),
+            Some(Err(msg)) => view! { <p class="error" role="alert">{format!("This plan cannot be solved: {msg}")}</p> }.into_any(),
+            Some(Ok(e)) => {
+                let p = plan.get();
+                let u = unit.get();
+                let items = p.items.iter().zip(&e.items).map(|(it, s)| {
+                    let v = &s.verdict;
+                    let verdict = if v.safe { format!("meets, +{:.1}", u.diff(v.margin)) } else { format!("FAILS, {:.1}", u.diff(v.margin)) };
+                    view! {
+                        <tr class:unsafe=!v.safe>
+                            <td>{it.name.clone()}</td><td>{u.fmt(s.min)}</td><td>{u.fmt(s.mean)}</td><td>{u.fmt(s.max)}</td>
+                            <td>{if s.in_band.is_finite() { format!("{:.0} %", 100.0 * s.in_band) } else { "—".into() }}</td>
+                            <td class="verdict" title=v.binding.source.clone()>{verdict}</td>
+                            <td>{format!("{:.1} g", s.moisture_g)}</td>
+                        </tr>
+                    }
+                }).collect_view();
+                let zones = p.zones.iter().zip(&e.zones).map(|(z, s)| {
+                    let diag = match &s.diagnosis {
+                        Some(Diagnosis::Physics(m)) => format!("physics: {m}"),
+                        Some(Diagnosis::Setting(m)) => format!("setting: {m}"),
+                        None => String::new(),
+                    };
+                    view! {
+                        <tr><td>{z.name.clone()}</td><td>{format!("{:.0} %", 100.0 * s.coverage_linear)}</td><td>{format!("{:.0} %", 100.0 * s.coverage_simulated)}</td>
+                        <td>{format!("{:.1}", u.diff(s.rms_simulated))}</td><td class="diagnosis">{diag}</td></tr>
+                    }
+                }).collect_view();
+                let budget = p.oven.budget_s.map_or("no budget".to_string(), |b| format!("of {b:.0} s"));
+                view! {
+                    <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
+                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest"</th><th>"mean"</th><th>"warmest"</th><th>"in band"</th><th>"coldest-cell verdict"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
+                    <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", if u == Unit::Celsius { "K" } else { "°F" })}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
+                    <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
+                    <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>
+                }.into_any()
+            }
+        })
+    };
+
+    let hover_text = move || {
+        let Some(i) = hover.get() else {
+            return "Hover a cell for its numbers.".to_string();
+        };
+        let p = plan.get();
+        if i >= p.tray.cells() {
+            // The tray changed size under the pointer.
+            return "Hover a cell for its numbers.".to_string();
+        }
+        let u = unit.get();
+        let (r, c) = (i / p.tray.width, i % p.tray.width);
+        let food = p
+            .item_at(i)
+            .map_or("empty".to_string(), |k| p.items[k].name.clone());
+        let zone = p
+            .zone_at(i)
+            .map_or("no target".to_string(), |z| p.zones[z].name.clone());
+        eval.with(|e| match e {
+            Some(Ok(e)) if i < e.linear.len() => format!(
+                "row {r}, col {c}: {food}, {zone}; linear {}, simulated {}, off band {}",
+                u.fmt(e.linear[i]),
+                u.fmt(e.course.after_standing[i]),
+                if e.error_simulated[i].is_finite() {
+                    format!("{:+.1}", u.diff(e.error_simulated[i]))
+                } else {
+                    "—".into()
+                }
+            ),
+            _ => format!("row {r}, col {c}: {food}, {zone}"),
+        })
+    };
+
+    let on_import_library = move |ev: leptos::ev::Event| {
+        let Some(input) = ev
+            .target()
+            .and_then(|t| t.dyn_into::<web_sys::HtmlInputElement>().ok())
+        else {
+            return;
+        };
+        let Some(file) = input.files().and_then(|f| f.get(0)) else {
+            return;
+        };
+        let file = gloo::file::File::from(file);
+        leptos::task::spawn_local(async move {
+            match gloo::file::futures::read_as_text(&file).await {
+                Ok(text) => {
+                    let parsed = if text.trim_start().starts_with('{') {
+                        MapLibrary::from_json(&text)
+                    } else {
+                        MapLibrary::from_csv(&text)
+                    };
+                    match parsed {
+                        Ok(lib) => {
+                            let name = lib.name.clone();
+                            let configs = lib.configs;
+                            library.set(Some(lib));
+                            edit(&|p| {
+                                p.maps = MapSource::Library { name: name.clone() };
+                                p.oven.configs = configs;
+                            });
+                            notice.set(Some(format!("Map library '{name}' imported.")));
+                        }
+                        Err(e) => notice.set(Some(format!("The map library was refused: {e}"))),
+                    }
+                }
+                Err(e) => notice.set(Some(format!("The file could not be read: {e}"))),
+            }
+        });
+    };
+    let on_import_plan = move |ev: leptos::ev::Event| {
+        let Some(input) = ev
+            .target()
+            .and_then(|t| t.dyn_into::<web_sys::HtmlInputElement>().ok())
+        else {
+            return;
+        };
+        let Some(file) = input.files().and_then(|f| f.get(0)) else {
+            return;
+        };
+        let file = gloo::file::File::from(file);
+        leptos::task::spawn_local(async move {
+            match gloo::file::futures::read_as_text(&file)
+                .await
+                .map_err(|e| e.to_string())
+                .and_then(|t| wire::from_json(&t).map_err(|e| e.to_string()))
+            {
+                Ok(p) => edit(&|cur| *cur = p.clone()),
+                Err(e) => notice.set(Some(format!("The plan file was refused: {e}"))),
+            }
+        });
+    };
+
+    let png = move |r: NodeRef<html::Canvas>, name: &'static str| {
+        move |_| {
+            if let Some(c) = r.get()
+                && let Ok(url) = c.to_data_url()
+            {
+                download_url(name, &url);
+            }
+        }
+    };
+
+    view! {
+        <header>
+            <h1>"Traycast"</h1>
+            <input class="plan-name" aria-label="plan name" prop:value=move || plan.with(|p| p.name.clone()) on:change=move |ev| { let v = event_target_value(&ev); edit(&|p| p.name = v.clone()); } />
+            <select aria-label="open a demo" on:change=move |ev| { let v = event_target_value(&ev); if let Some(d) = demos::demo(&v) { edit(&|p| *p = d.clone()); } }>
+                <option value="">"Open a demo (illustrative)…"</option>
+                {demos::DEMOS.iter().map(|d| view! { <option value=*d>{*d}</option> }).collect_view()}
+            </select>
+            <button on:click=move |_| edit(&|p| *p = Plan::blank(p.tray.width, p.tray.height, p.tray.cell_mm))>"New blank tray"</button>
+            <span class="spacer"></span>
+            <button id="unit" on:click=move |_| unit.update(|u| *u = if *u == Unit::Celsius { Unit::Fahrenheit } else { Unit::Celsius })>{move || format!("Show {}", if unit.get() == Unit::Celsius { "°F" } else { "°C" })}</button>
+            <button id="share" on:click=move |_| {
+                if let Some(w) = web_sys::window() {
+                    let href = w.location().href().unwrap_or_default();
+                    let _ = w.navigator().clipboard().write_text(&href);
+                    copied.set(true);
+                }
+            }>"Copy share link"</button>
+            <span class="link-len" id="link-len">{move || format!("{} {} characters", if copied.get() { "copied," } else { "link" }, link_len.get())}</span>
+        </header>
+        <div id="notice" role="status" class:hidden=move || notice.get().is_none()>
+            <span>{move || notice.get().unwrap_or_default()}</span>
+            <button on:click=move |_| notice.set(None)>"Dismiss"</button>
+        </div>
+        <main>
+            <section class="tools">
+                <h2>"Foods"</h2>
+                {item_rows}
+                <button on:click=move |_| edit(&|p| if p.items.len() < 26 { p.items.push(FoodItem { name: format!("Food {}", p.items.len() + 1), food: "rice".into(), thickness_mm: 20.0, start_c: 4.0 }); })>"Add food item"</button>
+                <h2>"Targets"</h2>
+                {zone_rows}
+                <button on:click=move |_| edit(&|p| if p.zones.len() < 26 { p.zones.push(Zone { name: format!("Target {}", p.zones.len() + 1), min_c: 70.0, max_c: 80.0, weight: 1.0, cap_c: None }); })>"Add target"</button>
+                <h2>"Brush"</h2>
+                <div class="row">
+                    <button class:active=move || tool.get() == Tool::EraseFood on:click=move |_| tool.set(Tool::EraseFood) title="key E">"Erase food"</button>
+                    <button class:active=move || tool.get() == Tool::EraseZone on:click=move |_| tool.set(Tool::EraseZone)>"Erase target"</button>
+                    <button class:active=move || rect.get() on:click=move |_| rect.update(|r| *r = !*r) title="key R">"Rectangle"</button>
+                </div>
+                <label>"Size " {move || brush.get()}<input type="range" min="1" max="9" prop:value=move || brush.get().to_string() on:input=move |ev| if let Some(v) = num(&ev) { brush.set(v as usize); } /></label>
+                <div class="row">
+                    <button id="undo" on:click=move |_| do_undo() title="Ctrl+Z">"Undo"</button>
+                    <button id="redo" on:click=move |_| do_redo() title="Ctrl+Y">"Redo"</button>
+                </div>
+                <h2>"Oven"</h2>
+                <label>"Rated power (W)"<input type="number" prop:value=move || plan.with(|p| p.oven.power_w.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.power_w = v); } /></label>
+                <label>"Configurations"<input type="number" prop:value=move || plan.with(|p| p.oven.configs.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.configs = (v as usize).clamp(1, 512)); } /></label>
+                <label>"Time budget (s)"<input id="budget" type="number" placeholder="none" prop:value=move || plan.with(|p| p.oven.budget_s.map(|b| b.to_string()).unwrap_or_default()) on:change=move |ev| { let v = num(&ev); edit(&|p| p.oven.budget_s = v); } /></label>
+                <label>"Limit per configuration (s)"<input type="number" placeholder="none" prop:value=move || plan.with(|p| p.oven.limit_s.map(|b| b.to_string()).unwrap_or_default()) on:change=move |ev| { let v = num(&ev); edit(&|p| p.oven.limit_s = v); } /></label>
+                <label>"Dwell quantum (s)"<input type="number" step="0.1" prop:value=move || plan.with(|p| p.oven.quantum_s.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.quantum_s = v); } /></label>
+                <label>"Rounds (1 = blocks)"<input type="number" min="1" max="100" prop:value=move || plan.with(|p| match p.oven.sequencing { Sequencing::Blocks => "1".to_string(), Sequencing::Rounds(r) => r.to_string() }) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.sequencing = if v <= 1.0 { Sequencing::Blocks } else { Sequencing::Rounds(v.min(100.0) as u16) }); } /></label>
+                <label>"Standing time (s)"<input type="number" prop:value=move || plan.with(|p| p.oven.standing_s.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.standing_s = v); } /></label>
+                <h2>"Files"</h2>
+                <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_import_library /></label>
+                <label class="file">"Open plan file"<input id="import-plan" type="file" accept=".json,application/json" on:change=on_import_plan /></label>
+                <div class="row">
+                    <button on:click=move |_| download("plan.traycast.json", "application/json", &wire::to_json(&plan.get_untracked()))>"Save plan"</button>
+                    <button on:click=move |_| { if let Some(Ok(e)) = eval.get_untracked() { let p = plan.get_untracked(); download("schedule.csv", "text/csv", &wire::schedule_csv(&p, &e.schedule)); } }>"Export schedule"</button>
+                    <button on:click=move |_| { if let Some(w) = web_sys::window() { let _ = w.print(); } }>"Print report"</button>
+                </div>
+            </section>
+            <section class="board">
+                <h2>"Tray " <small>{move || plan.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
+                <canvas id="tray" node_ref=tray_ref on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| hover.set(None)></canvas>
+                <p class="hover" id="hover">{hover_text}</p>
+                <div class="maps">
+                    <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=lin_ref></canvas><button class="small" on:click=png(lin_ref, "linear.png")>"PNG"</button></figure>
+                    <figure><figcaption>{move || format!("Simulated, after standing ({})", unit.get().symbol())}</figcaption><canvas id="map-simulated" node_ref=sim_ref></canvas><button class="small" on:click=png(sim_ref, "simulated.png")>"PNG"</button></figure>
+                    <figure><figcaption>"Off band after standing: blue too cold, red too hot"</figcaption><canvas id="map-error" node_ref=err_ref></canvas><button class="small" on:click=png(err_ref, "error.png")>"PNG"</button></figure>
+                </div>
+            </section>
+            <section class="results">
+                <h2>"Dwell per configuration"</h2>
+                <canvas id="dwell-bars" node_ref=bars_ref></canvas>
+                <h2>"Foods over time"</h2>
+                <canvas id="time-course" node_ref=course_ref></canvas>
+                <h2>"Outcome"</h2>
+                <div id="summary">{summary}</div>
+                <aside class="cautions" id="cautions">
+                    <h3>"Before you serve"</h3>
+                    <ul>{CAUTIONS.iter().map(|c| view! { <li>{*c}</li> }).collect_view()}</ul>
+                </aside>
+            </section>
+        </main>
+    }
+}

@@ -1,0 +1,29 @@
+//! The Traycast browser workbench: paint a tray, watch the plan redraw live, share it as a link.
+//!
+//! A Leptos client-side app on the plan crate compiled to wasm; no server. The numbers it shows come
+//! from `traycast-plan`; this crate only edits, draws and stores.
+
+mod app;
+mod draw;
+mod storage;
+mod surface;
+mod units;
+
+fn main() {
+    std::panic::set_hook(Box::new(|info| {
+        console_error_panic_hook::hook(info);
+        // Recoverable message instead of a dead page.
+        if let Some(el) = web_sys::window()
+            .and_then(|w| w.document())
+            .and_then(|d| d.get_element_by_id("panic"))
+        {
+            el.set_text_content(Some("Something went wrong inside the workbench. Your plan is autosaved: reload the page to continue."));
+            let _ = el.set_attribute("style", "display:block");
+        }
+    }));
+    surface::install();
+    if let Some(sw) = web_sys::window().map(|w| w.navigator().service_worker()) {
+        let _ = sw.register("sw.js");
+    }
+    leptos::mount::mount_to_body(app::App);
+}
