@@ -204,6 +204,7 @@ pub fn App() -> impl IntoView {
             }
         });
         measure("tc-frame", "tc-eval-start");
+        measure("tc-input-to-frame", "tc-input");
     });
 
     let edit = move |f: &dyn Fn(&mut Plan)| {

@@ -4,6 +4,7 @@
 //! `.ci/run` and a new developer run the same commands.
 
 mod bench;
+mod bench_web;
 mod run;
 mod web;
 
@@ -17,7 +18,8 @@ commands:
   bench-solver   criterion benchmarks of the dwell solver, plus SciPy's nnls side by side
                  (--reuse: skip criterion, read its last results)
   serve          build the workbench and serve it on 127.0.0.1 (opens on the built-in demo)
-  e2e            build the workbench and run the browser tests only";
+  e2e            build the workbench and run the browser tests only
+  bench-web      200 scripted brush strokes in headless Chromium, against native, as a table";
 
 /// Library crates that must build for wasm32-unknown-unknown (no I/O, no browser knowledge).
 pub const WASM_CRATES: &[&str] = &[
@@ -34,6 +36,7 @@ fn main() -> ExitCode {
         Some("bench-solver") => bench::solver(args.iter().any(|a| a == "--reuse")),
         Some("serve") => web::serve(),
         Some("e2e") => web::e2e(),
+        Some("bench-web") => bench_web::run(),
         _ => {
             eprintln!("{USAGE}");
             return ExitCode::from(2);

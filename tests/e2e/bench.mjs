@@ -1,0 +1,34 @@
+// Browser performance report (a benchmark, not a test): 200 scripted brush strokes on the plan in
+// TRAYCAST_URL, reading the workbench's performance marks. Prints one JSON object.
+import { chromium } from 'playwright-core';
+
+const browser = await chromium.launch({
+  executablePath: process.env.CHROMIUM || '/usr/bin/chromium',
+  args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+});
+const page = await (await browser.newContext({ viewport: { width: 1500, height: 1000 } })).newPage();
+const t0 = Date.now();
+await page.goto(process.env.TRAYCAST_URL);
+await page.waitForFunction(() => window.traycast && window.traycast.evaluation() !== null, null, { timeout: 60000 });
+const firstView = await page.evaluate(() => performance.getEntriesByName('tc-frame')[0].startTime + performance.getEntriesByName('tc-frame')[0].duration);
+await page.evaluate(() => performance.clearMeasures());
+const box = await page.locator('#tray').boundingBox();
+const plan = await page.evaluate(() => window.traycast.plan());
+const px = box.width / plan.tray.width;
+for (let k = 0; k < 200; k++) {
+  await page.locator('.zone .swatch').nth(k % 2).click();
+  const r = 2 + (k * 5) % (plan.tray.height - 4), c = 2 + (k * 7) % (plan.tray.width - 6);
+  await page.mouse.move(box.x + (c + 0.5) * px, box.y + (r + 0.5) * px);
+  await page.mouse.down();
+  await page.mouse.move(box.x + (c + 3.5) * px, box.y + (r + 0.5) * px, { steps: 3 });
+  await page.mouse.up();
+}
+const stats = await page.evaluate(() => {
+  const q = (name) => {
+    const v = performance.getEntriesByName(name).map((e) => e.duration).sort((a, b) => a - b);
+    return { count: v.length, median_ms: v[Math.floor(v.length / 2)], p95_ms: v[Math.floor(v.length * 0.95)] };
+  };
+  return { input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), redraw: q('tc-frame') };
+});
+console.log(JSON.stringify({ ...stats, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
+await browser.close();
