@@ -9,8 +9,8 @@ const browser = await chromium.launch({
 const page = await (await browser.newContext({ viewport: { width: 1500, height: 1000 } })).newPage();
 const t0 = Date.now();
 await page.goto(process.env.TRAYCAST_URL);
-await page.waitForFunction(() => window.traycast && window.traycast.evaluation() !== null, null, { timeout: 60000 });
-const firstView = await page.evaluate(() => performance.getEntriesByName('tc-frame')[0].startTime + performance.getEntriesByName('tc-frame')[0].duration);
+await page.waitForFunction(() => window.traycast && window.traycast.settled() && window.traycast.evaluation() !== null, null, { timeout: 60000 });
+const firstView = await page.evaluate(() => { const e = performance.getEntriesByName('tc-full-frame')[0]; return e.startTime + e.duration; });
 await page.evaluate(() => performance.clearMeasures());
 const box = await page.locator('#tray').boundingBox();
 const plan = await page.evaluate(() => window.traycast.plan());
@@ -28,7 +28,7 @@ const stats = await page.evaluate(() => {
     const v = performance.getEntriesByName(name).map((e) => e.duration).sort((a, b) => a - b);
     return { count: v.length, median_ms: v[Math.floor(v.length / 2)], p95_ms: v[Math.floor(v.length * 0.95)] };
   };
-  return { input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), redraw: q('tc-frame') };
+  return { input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), full_frame: q('tc-full-frame') };
 });
 console.log(JSON.stringify({ ...stats, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
 await browser.close();

@@ -38,10 +38,11 @@ async function test(name, fn) {
 }
 function assert(ok, msg) { if (!ok) throw new Error(msg); }
 async function ready(page) {
-  await page.waitForFunction(() => window.traycast && window.traycast.evaluation() !== null, null, { timeout: 30000 });
+  await page.waitForFunction(() => window.traycast && window.traycast.settled() && window.traycast.evaluation() !== null, null, { timeout: 30000 });
 }
-async function evaluation(page) { return page.evaluate(() => window.traycast.evaluation()); }
-async function plan(page) { return page.evaluate(() => window.traycast.plan()); }
+// The full evaluation follows an edit once the strokes pause: wait for it to settle.
+async function evaluation(page) { await ready(page); return page.evaluate(() => window.traycast.evaluation()); }
+async function plan(page) { await ready(page); return page.evaluate(() => window.traycast.plan()); }
 async function open(page, hash = '') { await page.goto(URL + hash); await ready(page); }
 const same = (a, b) => JSON.stringify(a) === JSON.stringify(b);
 

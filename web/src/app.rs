@@ -6,7 +6,7 @@ use crate::surface;
 use crate::units::Unit;
 use leptos::html;
 use leptos::prelude::*;
-use traycast_plan::evaluate::{Diagnosis, Evaluation, Evaluator, Options};
+use traycast_plan::evaluate::{Diagnosis, Evaluation, Evaluator, Options, Quick};
 use traycast_plan::library::MapLibrary;
 use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
 use traycast_plan::{demos, wire};
@@ -135,21 +135,43 @@ pub fn App() -> impl IntoView {
     let bars_ref = NodeRef::<html::Canvas>::new();
     let course_ref = NodeRef::<html::Canvas>::new();
 
-    // Every edit: evaluate, autosave, update the link, redraw.
+    let quick: RwSignal<Option<Quick>> = RwSignal::new(None);
+    let timer = StoredValue::new_local(None::<gloo::timers::callback::Timeout>);
+
+    // Every edit: the fast path (warm solve + linear prediction) at once, autosave, the link; the
+    // time course and verdicts as soon as the strokes pause (its own, larger budget).
     Effect::new(move |_| {
         let p = plan.get();
         let lib = library.get();
-        mark("tc-eval-start");
-        let mut result = None;
-        evaluator
-            .update_value(|ev| result = Some(ev.evaluate(&p, lib.as_ref(), Options::default())));
-        let result = result.expect("evaluated").map_err(|e| e.to_string());
-        measure("tc-solve-and-simulate", "tc-eval-start");
-        surface::publish(&p, result.as_ref().ok());
+        surface::pending();
+        let mut q = None;
+        evaluator.update_value(|ev| q = Some(ev.quick(&p, lib.as_ref())));
+        match q.expect("evaluated") {
+            Ok(q) => quick.set(Some(q)),
+            Err(e) => {
+                quick.set(None);
+                eval.set(Some(Err(e.to_string())));
+            }
+        }
         storage::save(&p);
         link_len.set(storage::set_fragment(&p));
-        eval.set(Some(result));
+        let full = gloo::timers::callback::Timeout::new(30, move || {
+            let p = plan.get_untracked();
+            let lib = library.get_untracked();
+            mark("tc-eval-start");
+            let mut result = None;
+            evaluator.update_value(|ev| {
+                result = Some(ev.evaluate(&p, lib.as_ref(), Options::default()))
+            });
+            let result = result.expect("evaluated").map_err(|e| e.to_string());
+            measure("tc-solve-and-simulate", "tc-eval-start");
+            surface::publish(&p, result.as_ref().ok());
+            eval.set(Some(result));
+        });
+        // Replacing the stored timeout cancels the one still waiting.
+        timer.set_value(Some(full));
     });
+    // Fast views: editor, linear prediction, off-band map, dwell bars.
     Effect::new(move |_| {
         let p = plan.get();
         let u = unit.get();
@@ -157,54 +179,57 @@ pub fn App() -> impl IntoView {
         if let Some(c) = tray_ref.get() {
             draw::editor(&c, &p, px);
         }
-        eval.with(|e| {
-            // Right after an edit the evaluation may still describe the previous plan (another tray
-            // size): draw it only once it matches; the evaluation effect will call again.
-            if let Some(Ok(e)) = e
-                .as_ref()
-                .filter(|e| e.as_ref().is_ok_and(|e| e.linear.len() == p.tray.cells()))
-            {
+        quick.with(|q| {
+            if let Some(q) = q.as_ref().filter(|q| q.linear.len() == p.tray.cells()) {
                 let hp = draw::cell_px(&p, 300.0);
                 if let Some(c) = lin_ref.get() {
-                    draw::heatmap(&c, &p, &e.linear, hp, false, u, "linear prediction");
-                }
-                if let Some(c) = sim_ref.get() {
-                    draw::heatmap(
-                        &c,
-                        &p,
-                        &e.course
-                            .after_standing
-                            .iter()
-                            .enumerate()
-                            .map(|(i, t)| if p.food[i] > 0 { *t } else { f64::NAN })
-                            .collect::<Vec<_>>(),
-                        hp,
-                        false,
-                        u,
-                        "simulated after standing",
-                    );
+                    draw::heatmap(&c, &p, &q.linear, hp, false, u, "linear prediction");
                 }
                 if let Some(c) = err_ref.get() {
                     draw::heatmap(
                         &c,
                         &p,
-                        &e.error_simulated,
+                        &q.error_linear,
                         hp,
                         true,
                         u,
-                        "distance outside the band",
+                        "distance outside the band, linear prediction",
                     );
                 }
                 if let Some(c) = bars_ref.get() {
-                    draw::dwell_bars(&c, e);
+                    draw::dwell_bars(&c, &q.dwell);
+                }
+            }
+        });
+        measure("tc-input-to-frame", "tc-input");
+    });
+    // Slow views: the simulated map and the time course.
+    Effect::new(move |_| {
+        let p = plan.get_untracked();
+        let u = unit.get();
+        eval.with(|e| {
+            // The evaluation may still describe an earlier plan (another tray size): skip it then.
+            if let Some(Ok(e)) = e
+                .as_ref()
+                .filter(|e| e.as_ref().is_ok_and(|e| e.linear.len() == p.tray.cells()))
+            {
+                let hp = draw::cell_px(&p, 300.0);
+                if let Some(c) = sim_ref.get() {
+                    let temps: Vec<f64> = e
+                        .course
+                        .after_standing
+                        .iter()
+                        .enumerate()
+                        .map(|(i, t)| if p.food[i] > 0 { *t } else { f64::NAN })
+                        .collect();
+                    draw::heatmap(&c, &p, &temps, hp, false, u, "simulated after standing");
                 }
                 if let Some(c) = course_ref.get() {
                     draw::time_course(&c, &p, e, u);
                 }
             }
         });
-        measure("tc-frame", "tc-eval-start");
-        measure("tc-input-to-frame", "tc-input");
+        measure("tc-full-frame", "tc-eval-start");
     });
 
     let edit = move |f: &dyn Fn(&mut Plan)| {
@@ -579,7 +604,7 @@ pub fn App() -> impl IntoView {
                 <div class="maps">
                     <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=lin_ref></canvas><button class="small" on:click=png(lin_ref, "linear.png")>"PNG"</button></figure>
                     <figure><figcaption>{move || format!("Simulated, after standing ({})", unit.get().symbol())}</figcaption><canvas id="map-simulated" node_ref=sim_ref></canvas><button class="small" on:click=png(sim_ref, "simulated.png")>"PNG"</button></figure>
-                    <figure><figcaption>"Off band after standing: blue too cold, red too hot"</figcaption><canvas id="map-error" node_ref=err_ref></canvas><button class="small" on:click=png(err_ref, "error.png")>"PNG"</button></figure>
+                    <figure><figcaption>"Off band (linear prediction): blue too cold, red too hot"</figcaption><canvas id="map-error" node_ref=err_ref></canvas><button class="small" on:click=png(err_ref, "error.png")>"PNG"</button></figure>
                 </div>
             </section>
             <section class="results">

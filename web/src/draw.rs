@@ -170,18 +170,18 @@ fn unit_deg(unit: Unit) -> &'static str {
 }
 
 /// Dwell bars: seconds per configuration, labelled every few configurations.
-pub fn dwell_bars(canvas: &HtmlCanvasElement, eval: &Evaluation) {
+pub fn dwell_bars(canvas: &HtmlCanvasElement, dwell: &[f64]) {
     let Some(g) = ctx(canvas) else { return };
     let (width, height) = (420.0, 150.0);
     canvas.set_width(width as u32);
     canvas.set_height(height as u32);
     g.set_fill_style_str("#ffffff");
     g.fill_rect(0.0, 0.0, width, height);
-    let n = eval.dwell.len().max(1);
-    let max = eval.dwell.iter().copied().fold(1.0f64, f64::max);
+    let n = dwell.len().max(1);
+    let max = dwell.iter().copied().fold(1.0f64, f64::max);
     let bw = (width - 40.0) / n as f64;
     g.set_fill_style_str("#2f5d8a");
-    for (j, d) in eval.dwell.iter().enumerate() {
+    for (j, d) in dwell.iter().enumerate() {
         let bh = (height - 30.0) * d / max;
         g.fill_rect(
             34.0 + j as f64 * bw,

@@ -10,6 +10,13 @@ use wasm_bindgen::prelude::Closure;
 
 thread_local! {
     static CURRENT: RefCell<(Option<Plan>, Option<serde_json::Value>)> = const { RefCell::new((None, None)) };
+    /// False while an edit's full evaluation is still pending.
+    static SETTLED: RefCell<bool> = const { RefCell::new(false) };
+}
+
+/// Marks the published evaluation as out of date (an edit is being evaluated).
+pub fn pending() {
+    SETTLED.with(|s| *s.borrow_mut() = false);
 }
 
 /// The evaluation as the JSON object `traycast solve --format json` prints (same field names).
@@ -38,6 +45,7 @@ pub fn evaluation_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
 pub fn publish(plan: &Plan, eval: Option<&Evaluation>) {
     let e = eval.map(|e| evaluation_json(plan, e));
     CURRENT.with(|c| *c.borrow_mut() = (Some(plan.clone()), e));
+    SETTLED.with(|s| *s.borrow_mut() = true);
 }
 
 fn to_js(v: &serde_json::Value) -> JsValue {
@@ -74,6 +82,10 @@ pub fn install() {
     let _ = js_sys::Reflect::set(&api, &"plan".into(), plan.as_ref());
     let _ = js_sys::Reflect::set(&api, &"evaluation".into(), evaluation.as_ref());
     let _ = js_sys::Reflect::set(&api, &"link".into(), link.as_ref());
+    let settled =
+        Closure::<dyn Fn() -> JsValue>::new(|| JsValue::from_bool(SETTLED.with(|s| *s.borrow())));
+    let _ = js_sys::Reflect::set(&api, &"settled".into(), settled.as_ref());
+    settled.forget();
     let _ = js_sys::Reflect::set(&window, &"traycast".into(), &api);
     plan.forget();
     evaluation.forget();

@@ -277,6 +277,21 @@ pub struct Evaluation {
     pub cautions: &'static [&'static str],
 }
 
+/// The fast part of an evaluation (see [`Evaluator::quick`]).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Quick {
+    /// Seconds per configuration (rounded to the controller's quantum).
+    pub dwell: Vec<f64>,
+    /// Total heating time, s.
+    pub total_s: f64,
+    /// Solver status.
+    pub status: Status,
+    /// Linear prediction per cell, °C (NaN for empty cells).
+    pub linear: Vec<f64>,
+    /// Signed distance outside the band per cell, linear, K (NaN for cells without a target).
+    pub error_linear: Vec<f64>,
+}
+
 /// Options of an evaluation.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct Options {
@@ -478,6 +493,29 @@ impl Evaluator {
             sol = solver.solve(&spec)?;
         }
         Ok(sol)
+    }
+
+    /// The fast part of an evaluation, for every brush stroke: solve (warm) and the linear
+    /// prediction, without the time course. [`Evaluator::evaluate`] gives everything.
+    pub fn quick(&mut self, plan: &Plan, library: Option<&MapLibrary>) -> Result<Quick, PlanError> {
+        plan.validate()?;
+        self.maps(plan, library)?;
+        let sol = self.solve(plan, None)?;
+        let maps = self.maps.as_ref().expect("set");
+        let mut dwell = sol.dwell.clone();
+        quantise(&mut dwell, plan.oven.quantum_s, plan.oven.budget_s);
+        let linear = linear_prediction(plan, maps, &dwell);
+        let band = bands(plan);
+        let error_linear = (0..maps.cells)
+            .map(|i| band[i].map_or(f64::NAN, |(a, b)| band_distance(linear[i], a, b)))
+            .collect();
+        Ok(Quick {
+            total_s: dwell.iter().sum(),
+            dwell,
+            status: sol.status,
+            linear,
+            error_linear,
+        })
     }
 
     /// Evaluates `plan` end to end.

@@ -441,3 +441,18 @@ fn plan_validation_names_the_field() {
     p.zone[0] = 1;
     assert!(p.validate().unwrap_err().message.contains("empty cell"));
 }
+
+/// The per-stroke quick path gives the same dwell and linear prediction as the full evaluation.
+#[test]
+fn quick_path_matches_the_full_evaluation() {
+    let plan = demos::demo("lunch-tray").unwrap();
+    let mut ev = Evaluator::new();
+    let quick = ev.quick(&plan, None).unwrap();
+    let full = ev.evaluate(&plan, None, Options::default()).unwrap();
+    assert_eq!(quick.dwell, full.dwell);
+    assert_eq!(format!("{:?}", quick.linear), format!("{:?}", full.linear));
+    assert_eq!(
+        format!("{:?}", quick.error_linear),
+        format!("{:?}", full.error_linear)
+    );
+}
