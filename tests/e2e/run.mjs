@@ -2,7 +2,7 @@
 // Debian's Chromium through playwright-core. Run by `cargo xtask test` (or `cargo xtask e2e`).
 import { chromium } from 'playwright-core';
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -10,6 +10,7 @@ const URL = process.env.TRAYCAST_URL;
 const CLI = process.env.TRAYCAST_CLI;
 const ART = process.env.TRAYCAST_ARTIFACTS || '/tmp/traycast-e2e';
 const HERE = dirname(fileURLToPath(import.meta.url));
+rmSync(ART, { recursive: true, force: true });
 mkdirSync(ART, { recursive: true });
 
 const browser = await chromium.launch({
@@ -113,6 +114,7 @@ await test('painting food re-solves on new maps; an unreachable target gets a di
   await page.waitForTimeout(100);
   const e = await evaluation(page);
   assert(e.zones[2].diagnosis && /physics|setting/.test(e.zones[2].diagnosis), 'diagnosis shown: ' + e.zones[2].diagnosis);
+  await page.screenshot({ path: join(ART, 'workbench-painted-with-diagnosis.png'), fullPage: true });
   assert((await page.locator('#summary').textContent()).includes(e.zones[2].diagnosis.split(': ')[1].slice(0, 30)), 'diagnosis on the page');
 });
 
@@ -141,13 +143,18 @@ await test('hostile links show a message and leave the autosaved plan untouched'
   await drag(page, [16, 1], [16, 3]);
   const saved = await plan(page);
   const good = await page.evaluate(() => window.traycast.link());
-  const bad = ['#tc1.' + good.slice(4, 40), '#tc1.!!!not-base64!!!', '#tc9.' + good.slice(4), '#' + 'x'.repeat(200), '#tc1.eJzT0yMAAGTvBe8'];
+  // Truncated, not base64, wrong version, random text, random bytes, plus (from the Rust side) a
+  // decompression bomb and a plan of absurd size.
+  const bad = ['#tc1.' + good.slice(4, 40), '#tc1.!!!not-base64!!!', '#tc9.' + good.slice(4), '#' + 'x'.repeat(200), '#tc1.eJzT0yMAAGTvBe8',
+    ...JSON.parse(process.env.TRAYCAST_HOSTILE || '[]')];
+  assert(bad.length >= 7, 'bomb and absurd-size links provided');
   for (const h of bad) {
     await page.goto('about:blank');
     await page.goto(URL + h);
     await ready(page);
     assert(await page.locator('#notice').isVisible(), 'message for ' + h.slice(0, 20));
     assert(same(saved, await plan(page)), 'plan unchanged after ' + h.slice(0, 20));
+    if (h === bad[bad.length - 2]) await page.screenshot({ path: join(ART, 'workbench-refused-link.png') });
   }
   await page.goto('about:blank');
   await page.goto(URL);
@@ -178,6 +185,7 @@ await test('after one visit the workbench starts and solves offline', async ({ c
   await ready(page);
   const e = await evaluation(page);
   assert(e.total_s > 0, 'solved offline');
+  await page.screenshot({ path: join(ART, 'workbench-offline.png') });
   await context.setOffline(false);
 });
 

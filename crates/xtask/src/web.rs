@@ -176,6 +176,18 @@ pub fn serve() -> Result<(), String> {
     }
 }
 
+/// Links the browser must refuse that only the Rust side can make: a decompression bomb (8 MiB of
+/// zeros deflated) and a well-formed plan of absurd size. JSON array of fragments.
+fn hostile_links() -> Result<String, String> {
+    use base64::Engine;
+    let bomb = miniz_oxide::deflate::compress_to_vec(&vec![0u8; 8 << 20], 10);
+    let bomb = format!("#tc1.{}", base64::engine::general_purpose::URL_SAFE_NO_PAD.encode(bomb));
+    let mut huge = traycast_plan::model::Plan::blank(4000, 2, 5.0);
+    huge.name = "absurd".into();
+    let absurd = format!("#{}", traycast_plan::wire::to_link(&huge));
+    serde_json::to_string(&[bomb, absurd]).map_err(|e| e.to_string())
+}
+
 /// Runs the browser end-to-end tests (tests/e2e/run.mjs) against a fresh build.
 pub fn e2e() -> Result<(), String> {
     build()?;
@@ -196,6 +208,7 @@ pub fn e2e() -> Result<(), String> {
     }
     let status = std::process::Command::new("node")
         .arg(root().join("tests/e2e/run.mjs"))
+        .env("TRAYCAST_HOSTILE", hostile_links()?)
         .env("TRAYCAST_URL", &addr)
         .env("TRAYCAST_CLI", &cli)
         .env("TRAYCAST_ARTIFACTS", root().join("target/e2e"))
