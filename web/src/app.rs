@@ -1,6 +1,7 @@
 //! The workbench: one screen with the tray editor, live views and the plan's numbers.
 
 use crate::draw;
+use crate::paint::{Tool, paint};
 use crate::storage;
 use crate::surface;
 use crate::units::Unit;
@@ -14,15 +15,6 @@ use traycast_thermal::catalogue::CATALOGUE;
 use traycast_thermal::safety::CAUTIONS;
 use wasm_bindgen::JsCast;
 
-/// What a stroke paints.
-#[derive(Clone, Copy, Debug, PartialEq)]
-enum Tool {
-    Food(usize),
-    Zone(usize),
-    EraseFood,
-    EraseZone,
-}
-
 fn mark(name: &str) {
     if let Some(p) = web_sys::window().and_then(|w| w.performance()) {
         let _ = p.mark(name);
@@ -33,47 +25,6 @@ fn measure(name: &str, from: &str) {
     if let Some(p) = web_sys::window().and_then(|w| w.performance()) {
         let _ = p.measure_with_start_mark(name, from);
     }
-}
-
-/// Paints `tool` on a square brush (or a rectangle from `a` to `b`) and returns whether anything changed.
-fn paint(plan: &mut Plan, tool: Tool, a: usize, b: usize, brush: usize) -> bool {
-    let w = plan.tray.width as i64;
-    let h = plan.tray.height as i64;
-    let (ar, ac) = (a as i64 / w, a as i64 % w);
-    let (br, bc) = (b as i64 / w, b as i64 % w);
-    let r = (brush as i64 - 1) / 2;
-    let (r0, r1, c0, c1) = if a == b {
-        (
-            ar - r,
-            ar + r + (brush as i64 - 1) % 2,
-            ac - r,
-            ac + r + (brush as i64 - 1) % 2,
-        )
-    } else {
-        (ar.min(br), ar.max(br), ac.min(bc), ac.max(bc))
-    };
-    let mut changed = false;
-    for row in r0.max(0)..=r1.min(h - 1) {
-        for col in c0.max(0)..=c1.min(w - 1) {
-            let i = (row * w + col) as usize;
-            let (food, zone) = (plan.food[i], plan.zone[i]);
-            match tool {
-                Tool::Food(k) => plan.food[i] = k as u8 + 1,
-                Tool::Zone(k) => {
-                    if plan.food[i] > 0 {
-                        plan.zone[i] = k as u8 + 1;
-                    }
-                }
-                Tool::EraseFood => {
-                    plan.food[i] = 0;
-                    plan.zone[i] = 0;
-                }
-                Tool::EraseZone => plan.zone[i] = 0,
-            }
-            changed |= food != plan.food[i] || zone != plan.zone[i];
-        }
-    }
-    changed
 }
 
 fn download(name: &str, mime: &str, text: &str) {

@@ -5,6 +5,7 @@
 
 mod app;
 mod draw;
+mod paint;
 mod storage;
 mod surface;
 mod units;

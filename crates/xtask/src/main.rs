@@ -76,7 +76,9 @@ fn test() -> Result<(), String> {
     // The fuzz target lives outside the workspace (cargo fuzz wants nightly); keep it compiling.
     cargo(&["check", "--manifest-path", "fuzz/Cargo.toml"])?;
     cargo(&["test", "--workspace"])?;
-    // The release bundle and the browser tests (installs Trunk, wasm-bindgen, Chromium if missing).
+    // UI logic in headless Chromium, then the release bundle and the browser tests (installs
+    // Trunk, wasm-bindgen, Chromium and ChromeDriver if missing).
+    web::component_tests()?;
     web::e2e()?;
     println!("xtask test: all checks passed");
     Ok(())

@@ -1,6 +1,6 @@
 //! The browser workbench's toolchain and a small static file server for `serve` and the browser tests.
 
-use crate::run::{cargo, output, root, run};
+use crate::run::{cargo, root, run};
 use std::io::{BufRead, BufReader, Write};
 use std::net::{TcpListener, TcpStream};
 use std::path::{Path, PathBuf};
@@ -176,12 +176,57 @@ pub fn serve() -> Result<(), String> {
     }
 }
 
+/// Runs the web crate's wasm-bindgen tests in headless Chromium (chromedriver from Debian).
+pub fn component_tests() -> Result<(), String> {
+    ensure_tools()?;
+    ensure_chromium()?;
+    let status =
+        std::process::Command::new(std::env::var("CARGO").unwrap_or_else(|_| "cargo".into()))
+            .args([
+                "test",
+                "--target",
+                "wasm32-unknown-unknown",
+                "--package",
+                "traycast-web",
+            ])
+            .current_dir(root())
+            .env("PATH", tool_path())
+            .env("CHROMEDRIVER", "/usr/bin/chromedriver")
+            .env(
+                "CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUNNER",
+                cargo_bin("wasm-bindgen-test-runner"),
+            )
+            .status()
+            .map_err(|e| format!("cannot start cargo: {e}"))?;
+    if !status.success() {
+        return Err("web component tests failed".into());
+    }
+    Ok(())
+}
+
+/// Debian's Chromium and ChromeDriver (never a browser download of a test tool's own).
+fn ensure_chromium() -> Result<(), String> {
+    if !Path::new("/usr/bin/chromium").exists() || !Path::new("/usr/bin/chromedriver").exists() {
+        run(
+            "sh",
+            &[
+                "-c",
+                "apt-get update -qq && apt-get install -y -qq chromium chromium-driver",
+            ],
+        )?;
+    }
+    Ok(())
+}
+
 /// Links the browser must refuse that only the Rust side can make: a decompression bomb (8 MiB of
 /// zeros deflated) and a well-formed plan of absurd size. JSON array of fragments.
 fn hostile_links() -> Result<String, String> {
     use base64::Engine;
     let bomb = miniz_oxide::deflate::compress_to_vec(&vec![0u8; 8 << 20], 10);
-    let bomb = format!("#tc1.{}", base64::engine::general_purpose::URL_SAFE_NO_PAD.encode(bomb));
+    let bomb = format!(
+        "#tc1.{}",
+        base64::engine::general_purpose::URL_SAFE_NO_PAD.encode(bomb)
+    );
     let mut huge = traycast_plan::model::Plan::blank(4000, 2, 5.0);
     huge.name = "absurd".into();
     let absurd = format!("#{}", traycast_plan::wire::to_link(&huge));
@@ -196,16 +241,7 @@ pub fn e2e() -> Result<(), String> {
     if !cli.exists() {
         cargo(&["build", "--release", "--package", "traycast-cli"])?;
     }
-    let chromium = output("sh", &["-c", "command -v chromium || true"])?;
-    if chromium.trim().is_empty() {
-        run(
-            "sh",
-            &[
-                "-c",
-                "apt-get update -qq && apt-get install -y -qq chromium",
-            ],
-        )?;
-    }
+    ensure_chromium()?;
     let status = std::process::Command::new("node")
         .arg(root().join("tests/e2e/run.mjs"))
         .env("TRAYCAST_HOSTILE", hostile_links()?)
