@@ -484,6 +484,8 @@ impl DwellSolver {
             self.ensure_z();
         }
         let max_active = 50 * n + 200;
+        // The cap is per call: a budget search makes many calls, each of which may need a few passes.
+        let mut passes = 0;
         loop {
             let c = self.linear_term(spec, nu);
             let tol: Vec<f64> =
@@ -504,9 +506,10 @@ impl DwellSolver {
             if optimal {
                 return true;
             }
-            if it.newton >= MAX_NEWTON {
+            if passes >= MAX_NEWTON {
                 return false;
             }
+            passes += 1;
             it.newton += 1;
             let x_old = self.vars.x.clone();
             let mut active = it.active_set;
@@ -530,6 +533,14 @@ impl DwellSolver {
             }
             let delta = self.rates.apply(&d);
             let t = self.line_search(spec, nu, &x_old, &d, &delta);
+            if t <= 0.0 {
+                // The true objective does not fall along d (possible only when x is already optimal
+                // to working precision, e.g. with duplicate columns): keep x and stop.
+                self.vars.x.copy_from_slice(&x_old);
+                self.vars.resnap(upper);
+                self.vars.factor_valid = false;
+                return done;
+            }
             if t < 1.0 {
                 for j in 0..n {
                     self.vars.x[j] = x_old[j] + t * d[j];
@@ -653,6 +664,9 @@ impl DwellSolver {
             return ok;
         }
         let (mut lo, mut s_lo) = (probe, s);
+        // The last solutions on each side of the root, with their true excess Σx − T.
+        let mut x_lo = (self.vars.x.clone(), s);
+        let mut x_hi: Option<(Vec<f64>, f64)> = None;
         let mut have_hi_solution = false;
         let mut side = 0i8;
         while it.budget < MAX_BUDGET {
@@ -676,6 +690,7 @@ impl DwellSolver {
             if s > 0.0 {
                 lo = nu;
                 s_lo = s;
+                x_lo = (self.vars.x.clone(), s);
                 if side == -1 {
                     s_hi *= 0.5;
                 }
@@ -683,6 +698,7 @@ impl DwellSolver {
             } else {
                 hi = nu;
                 s_hi = s;
+                x_hi = Some((self.vars.x.clone(), s));
                 have_hi_solution = true;
                 if side == 1 {
                     s_lo *= 0.5;
@@ -693,8 +709,16 @@ impl DwellSolver {
                 break;
             }
         }
-        // Land on a feasible point: re-solve at the upper end of the bracket, then trim any round-off excess.
-        if !have_hi_solution || total(self) > 0.0 {
+        // Land on the root: x(ν) is linear between breakpoints, so when the bracket has closed the
+        // point on the segment between the two sides' solutions with Σx = T is the optimum.
+        if let Some((xh, sh)) = &x_hi {
+            let (xl, sl) = &x_lo;
+            let theta = (-sh / (sl - sh)).clamp(0.0, 1.0);
+            let x: Vec<f64> = xh.iter().zip(xl).map(|(h, l)| h + theta * (l - h)).collect();
+            self.move_to(spec, &x);
+            self.vars.resnap(upper);
+            self.vars.factor_valid = false;
+        } else if !have_hi_solution || total(self) > 0.0 {
             ok &= self.newton(spec, upper, hi, it);
         }
         let sum: f64 = self.vars.x.iter().sum();
