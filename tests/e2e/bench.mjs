@@ -28,7 +28,7 @@ const stats = await page.evaluate(() => {
     const v = performance.getEntriesByName(name).map((e) => e.duration).sort((a, b) => a - b);
     return { count: v.length, median_ms: v[Math.floor(v.length / 2)], p95_ms: v[Math.floor(v.length * 0.95)] };
   };
-  return { input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), full_frame: q('tc-full-frame') };
+  return { quick: q('tc-quick'), input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), full_frame: q('tc-full-frame') };
 });
 console.log(JSON.stringify({ ...stats, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
 await browser.close();

@@ -74,6 +74,9 @@ pub fn App() -> impl IntoView {
     let hover = RwSignal::new(None::<usize>);
     let link_len = RwSignal::new(0usize);
     let copied = RwSignal::new(false);
+    let blank_w = RwSignal::new(24usize);
+    let blank_h = RwSignal::new(16usize);
+    let blank_mm = RwSignal::new(12.0f64);
     let undo = StoredValue::new(Vec::<Plan>::new());
     let redo = StoredValue::new(Vec::<Plan>::new());
     let stroke = StoredValue::new(None::<usize>);
@@ -95,8 +98,10 @@ pub fn App() -> impl IntoView {
         let p = plan.get();
         let lib = library.get();
         surface::pending();
+        mark("tc-quick-start");
         let mut q = None;
         evaluator.update_value(|ev| q = Some(ev.quick(&p, lib.as_ref())));
+        measure("tc-quick", "tc-quick-start");
         match q.expect("evaluated") {
             Ok(q) => quick.set(Some(q)),
             Err(e) => {
@@ -481,7 +486,7 @@ pub fn App() -> impl IntoView {
     let png = move |r: NodeRef<html::Canvas>, name: &'static str| {
         move |_| {
             if let Some(c) = r.get()
-                && let Ok(url) = c.to_data_url()
+                && let Some(url) = draw::with_caution(&c)
             {
                 download_url(name, &url);
             }
@@ -496,7 +501,10 @@ pub fn App() -> impl IntoView {
                 <option value="">"Open a demo (illustrative)…"</option>
                 {demos::DEMOS.iter().map(|d| view! { <option value=*d>{*d}</option> }).collect_view()}
             </select>
-            <button on:click=move |_| edit(&|p| *p = Plan::blank(p.tray.width, p.tray.height, p.tray.cell_mm))>"New blank tray"</button>
+            <label>"cells"<input id="blank-w" class="short" type="number" min="1" max="128" prop:value=move || blank_w.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_w.set((v as usize).clamp(1, 128)); } />
+                "×"<input id="blank-h" class="short" type="number" min="1" max="128" prop:value=move || blank_h.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_h.set((v as usize).clamp(1, 128)); } />
+                "of"<input id="blank-mm" class="short" type="number" min="1" max="100" prop:value=move || blank_mm.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_mm.set(v.clamp(1.0, 100.0)); } />"mm"</label>
+            <button id="new-blank" on:click=move |_| { let (w, h, mm) = (blank_w.get_untracked(), blank_h.get_untracked(), blank_mm.get_untracked()); edit(&|p| *p = Plan::blank(w, h, mm)); }>"New blank tray"</button>
             <span class="spacer"></span>
             <button id="unit" on:click=move |_| unit.update(|u| *u = if *u == Unit::Celsius { Unit::Fahrenheit } else { Unit::Celsius })>{move || format!("Show {}", if unit.get() == Unit::Celsius { "°F" } else { "°C" })}</button>
             <button id="share" on:click=move |_| {

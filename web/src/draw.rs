@@ -231,6 +231,21 @@ pub fn time_course(canvas: &HtmlCanvasElement, plan: &Plan, eval: &Evaluation, u
     g.stroke();
     let _ = g.fill_text("power off", x(heating) + 3.0, 18.0);
     let _ = g.fill_text(&format!("{t_max:.0} s"), width - 40.0, height - 6.0);
+    // Target bands of the zones, dashed, in the zone colours.
+    g.set_line_dash(&js_sys::Array::of2(&4.0.into(), &4.0.into()))
+        .ok();
+    for (z, zone) in plan.zones.iter().enumerate() {
+        g.set_stroke_style_str(ZONE_COLOURS[z % ZONE_COLOURS.len()]);
+        for v in [zone.min_c, zone.max_c] {
+            if (lo..=hi).contains(&v) {
+                g.begin_path();
+                g.move_to(36.0, y(v));
+                g.line_to(width - 8.0, y(v));
+                g.stroke();
+            }
+        }
+    }
+    g.set_line_dash(&js_sys::Array::new()).ok();
     for (k, curve) in eval.course.items.iter().enumerate() {
         let colour = FOOD_COLOURS[k % FOOD_COLOURS.len()];
         g.set_fill_style_str(colour);
@@ -251,6 +266,32 @@ pub fn time_course(canvas: &HtmlCanvasElement, plan: &Plan, eval: &Evaluation, u
             g.line_to(x(*t), y(*v));
         }
         g.stroke();
-        let _ = k < plan.items.len();
     }
+}
+
+/// A PNG data URL of `canvas` with the usual caution printed under it (every export carries it).
+pub fn with_caution(canvas: &HtmlCanvasElement) -> Option<String> {
+    let doc = web_sys::window()?.document()?;
+    let out: HtmlCanvasElement = doc.create_element("canvas").ok()?.dyn_into().ok()?;
+    let (w, h) = (canvas.width().max(420), canvas.height());
+    out.set_width(w);
+    out.set_height(h + 36);
+    let g = ctx(&out)?;
+    g.set_fill_style_str("#ffffff");
+    g.fill_rect(0.0, 0.0, w as f64, (h + 36) as f64);
+    g.draw_image_with_html_canvas_element(canvas, 0.0, 0.0)
+        .ok()?;
+    g.set_fill_style_str("#7a4b00");
+    g.set_font("10px system-ui, sans-serif");
+    let _ = g.fill_text(
+        "Illustrative prediction, not a measurement. Check the coldest part with a calibrated",
+        4.0,
+        h as f64 + 14.0,
+    );
+    let _ = g.fill_text(
+        "thermometer, let food stand covered, and follow your local food code.",
+        4.0,
+        h as f64 + 28.0,
+    );
+    out.to_data_url().ok()
 }

@@ -714,7 +714,11 @@ impl DwellSolver {
         if let Some((xh, sh)) = &x_hi {
             let (xl, sl) = &x_lo;
             let theta = (-sh / (sl - sh)).clamp(0.0, 1.0);
-            let x: Vec<f64> = xh.iter().zip(xl).map(|(h, l)| h + theta * (l - h)).collect();
+            let x: Vec<f64> = xh
+                .iter()
+                .zip(xl)
+                .map(|(h, l)| h + theta * (l - h))
+                .collect();
             self.move_to(spec, &x);
             self.vars.resnap(upper);
             self.vars.factor_valid = false;
