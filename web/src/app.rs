@@ -51,6 +51,30 @@ fn download_url(name: &str, url: &str) {
     }
 }
 
+/// Reads the file chosen in a file input as text and hands it to `then` (read errors go to `notice`).
+fn read_picked_file(
+    ev: &leptos::ev::Event,
+    notice: RwSignal<Option<String>>,
+    then: impl FnOnce(String) + 'static,
+) {
+    let Some(input) = ev
+        .target()
+        .and_then(|t| t.dyn_into::<web_sys::HtmlInputElement>().ok())
+    else {
+        return;
+    };
+    let Some(file) = input.files().and_then(|f| f.get(0)) else {
+        return;
+    };
+    let file = gloo::file::File::from(file);
+    leptos::task::spawn_local(async move {
+        match gloo::file::futures::read_as_text(&file).await {
+            Ok(text) => then(text),
+            Err(e) => notice.set(Some(format!("The file could not be read: {e}"))),
+        }
+    });
+}
+
 fn num(ev: &leptos::ev::Event) -> Option<f64> {
     event_target_value(ev)
         .trim()
@@ -424,62 +448,23 @@ pub fn App() -> impl IntoView {
     };
 
     let on_import_library = move |ev: leptos::ev::Event| {
-        let Some(input) = ev
-            .target()
-            .and_then(|t| t.dyn_into::<web_sys::HtmlInputElement>().ok())
-        else {
-            return;
-        };
-        let Some(file) = input.files().and_then(|f| f.get(0)) else {
-            return;
-        };
-        let file = gloo::file::File::from(file);
-        leptos::task::spawn_local(async move {
-            match gloo::file::futures::read_as_text(&file).await {
-                Ok(text) => {
-                    let parsed = if text.trim_start().starts_with('{') {
-                        MapLibrary::from_json(&text)
-                    } else {
-                        MapLibrary::from_csv(&text)
-                    };
-                    match parsed {
-                        Ok(lib) => {
-                            let name = lib.name.clone();
-                            let configs = lib.configs;
-                            library.set(Some(lib));
-                            edit(&|p| {
-                                p.maps = MapSource::Library { name: name.clone() };
-                                p.oven.configs = configs;
-                            });
-                            notice.set(Some(format!("Map library '{name}' imported.")));
-                        }
-                        Err(e) => notice.set(Some(format!("The map library was refused: {e}"))),
-                    }
-                }
-                Err(e) => notice.set(Some(format!("The file could not be read: {e}"))),
+        read_picked_file(&ev, notice, move |text| match MapLibrary::parse(&text) {
+            Ok(lib) => {
+                let (name, configs) = (lib.name.clone(), lib.configs);
+                library.set(Some(lib));
+                edit(&|p| {
+                    p.maps = MapSource::Library { name: name.clone() };
+                    p.oven.configs = configs;
+                });
+                notice.set(Some(format!("Map library '{name}' imported.")));
             }
+            Err(e) => notice.set(Some(format!("The map library was refused: {e}"))),
         });
     };
     let on_import_plan = move |ev: leptos::ev::Event| {
-        let Some(input) = ev
-            .target()
-            .and_then(|t| t.dyn_into::<web_sys::HtmlInputElement>().ok())
-        else {
-            return;
-        };
-        let Some(file) = input.files().and_then(|f| f.get(0)) else {
-            return;
-        };
-        let file = gloo::file::File::from(file);
-        leptos::task::spawn_local(async move {
-            match gloo::file::futures::read_as_text(&file)
-                .await
-                .map_err(|e| e.to_string())
-                .and_then(|t| wire::from_json(&t).map_err(|e| e.to_string()))
-            {
-                Ok(p) => edit(&|cur| *cur = p.clone()),
-                Err(e) => notice.set(Some(format!("The plan file was refused: {e}"))),
-            }
+        read_picked_file(&ev, notice, move |text| match wire::from_json(&text) {
+            Ok(p) => edit(&|cur| *cur = p.clone()),
+            Err(e) => notice.set(Some(format!("The plan file was refused: {e}"))),
         });
     };
 

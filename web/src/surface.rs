@@ -2,7 +2,7 @@
 //! return plain objects, so tests read numbers instead of pixels and a host page can embed us.
 
 use std::cell::RefCell;
-use traycast_plan::evaluate::{Diagnosis, Evaluation};
+use traycast_plan::evaluate::Evaluation;
 use traycast_plan::model::Plan;
 use traycast_plan::wire;
 use wasm_bindgen::JsValue;
@@ -19,31 +19,9 @@ pub fn pending() {
     SETTLED.with(|s| *s.borrow_mut() = false);
 }
 
-/// The evaluation as the JSON object `traycast solve --format json` prints (same field names).
-pub fn evaluation_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
-    serde_json::json!({
-        "plan": plan.name,
-        "dwell_s": e.dwell,
-        "total_s": e.total_s,
-        "status": e.status.as_str(),
-        "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
-            "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
-            "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
-            "diagnosis": r.diagnosis.as_ref().map(|d| match d { Diagnosis::Physics(m) => format!("physics: {m}"), Diagnosis::Setting(m) => format!("setting: {m}") }),
-        })).collect::<Vec<_>>(),
-        "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
-            "name": i.name, "min_c": r.min, "mean_c": r.mean, "max_c": r.max, "safe": r.verdict.safe,
-            "margin_k": r.verdict.margin, "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
-        })).collect::<Vec<_>>(),
-        "baseline": { "seconds": e.baseline.seconds, "rms_linear_k": e.baseline.rms_linear, "coverage_linear": e.baseline.coverage_linear },
-        "error_linear": e.error_linear.iter().map(|v| if v.is_finite() { Some(*v) } else { None }).collect::<Vec<_>>(),
-        "warnings": e.warnings,
-    })
-}
-
 /// Records the current plan and evaluation for the JS surface.
 pub fn publish(plan: &Plan, eval: Option<&Evaluation>) {
-    let e = eval.map(|e| evaluation_json(plan, e));
+    let e = eval.map(|e| traycast_plan::summary::to_json(plan, e));
     CURRENT.with(|c| *c.borrow_mut() = (Some(plan.clone()), e));
     SETTLED.with(|s| *s.borrow_mut() = true);
 }

@@ -39,13 +39,7 @@ pub fn load_plan(path: &Path) -> Result<Plan, CliError> {
 
 /// Reads a map library (CSV or JSON, by content).
 pub fn load_library(path: &Path) -> Result<MapLibrary, CliError> {
-    let text = read(path)?;
-    let lib = if text.trim_start().starts_with('{') {
-        MapLibrary::from_json(&text)
-    } else {
-        MapLibrary::from_csv(&text)
-    };
-    lib.map_err(in_file(path))
+    MapLibrary::parse(&read(path)?).map_err(in_file(path))
 }
 
 /// `traycast demo [NAME --out FILE]`.
@@ -179,28 +173,6 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
     s
 }
 
-fn json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
-    serde_json::json!({
-        "plan": plan.name,
-        "dwell_s": e.dwell,
-        "total_s": e.total_s,
-        "status": e.status.as_str(),
-        "kkt_residual": e.kkt_residual,
-        "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
-            "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
-            "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
-            "diagnosis": r.diagnosis.as_ref().map(|d| match d { Diagnosis::Physics(m) => format!("physics: {m}"), Diagnosis::Setting(m) => format!("setting: {m}") }),
-        })).collect::<Vec<_>>(),
-        "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
-            "name": i.name, "min_c": r.min, "mean_c": r.mean, "max_c": r.max, "safe": r.verdict.safe,
-            "margin_k": r.verdict.margin, "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
-        })).collect::<Vec<_>>(),
-        "baseline": { "seconds": e.baseline.seconds, "rms_linear_k": e.baseline.rms_linear, "coverage_linear": e.baseline.coverage_linear },
-        "warnings": e.warnings,
-        "cautions": e.cautions,
-    })
-}
-
 /// `traycast solve PLAN [--library FILE] [--format table|json] [--refine]`.
 pub fn solve(
     plan: &Path,
@@ -212,7 +184,8 @@ pub fn solve(
     if as_json {
         println!(
             "{}",
-            serde_json::to_string_pretty(&json(&p, &e)).expect("serialises")
+            serde_json::to_string_pretty(&traycast_plan::summary::to_json(&p, &e))
+                .expect("serialises")
         );
     } else {
         print!("{}", report(&p, &e));

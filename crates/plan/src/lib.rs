@@ -10,6 +10,7 @@
 //!   errors, band coverage, coldest-cell verdicts, unsteered baseline, feasibility diagnosis.
 //! - [`robustness`]: the plan's schedule with the foods placed one cell off.
 //! - [`wire`]: plan JSON, share links, schedule CSV — versioned boundary formats.
+//! - [`summary`]: the evaluation as one JSON object, shared by the command line and the workbench.
 //! - [`demos`]: illustrative demo scenarios.
 //!
 //! No files, no DOM: everything takes and returns values, strings and bytes.
@@ -33,6 +34,7 @@ pub mod field;
 pub mod library;
 pub mod model;
 pub mod robustness;
+pub mod summary;
 pub mod wire;
 
 pub use error::PlanError;

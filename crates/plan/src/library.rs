@@ -222,6 +222,15 @@ impl MapLibrary {
         Ok(())
     }
 
+    /// Parses either form, telling them apart by content (JSON starts with `{`).
+    pub fn parse(text: &str) -> Result<Self, PlanError> {
+        if text.trim_start().starts_with('{') {
+            Self::from_json(text)
+        } else {
+            Self::from_csv(text)
+        }
+    }
+
     /// Parses the CSV format (see the module docs). Errors name the line.
     pub fn from_csv(text: &str) -> Result<Self, PlanError> {
         let mut name = String::from("imported library");

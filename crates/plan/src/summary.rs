@@ -1,0 +1,30 @@
+//! The evaluation as one JSON object: what `traycast solve --format json` prints and what the
+//! workbench's `window.traycast.evaluation()` returns, so the two can never disagree in shape.
+
+use crate::evaluate::{Diagnosis, Evaluation};
+use crate::model::Plan;
+
+/// The evaluation's numbers by name (NaN becomes null).
+pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
+    let finite = |v: &f64| if v.is_finite() { Some(*v) } else { None };
+    serde_json::json!({
+        "plan": plan.name,
+        "dwell_s": e.dwell,
+        "total_s": e.total_s,
+        "status": e.status.as_str(),
+        "kkt_residual": e.kkt_residual,
+        "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
+            "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
+            "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
+            "diagnosis": r.diagnosis.as_ref().map(|d| match d { Diagnosis::Physics(m) => format!("physics: {m}"), Diagnosis::Setting(m) => format!("setting: {m}") }),
+        })).collect::<Vec<_>>(),
+        "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
+            "name": i.name, "min_c": finite(&r.min), "mean_c": finite(&r.mean), "max_c": finite(&r.max), "safe": r.verdict.safe,
+            "margin_k": finite(&r.verdict.margin), "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
+        })).collect::<Vec<_>>(),
+        "baseline": { "seconds": e.baseline.seconds, "rms_linear_k": e.baseline.rms_linear, "coverage_linear": finite(&e.baseline.coverage_linear) },
+        "error_linear": e.error_linear.iter().map(finite).collect::<Vec<_>>(),
+        "warnings": e.warnings,
+        "cautions": e.cautions,
+    })
+}
