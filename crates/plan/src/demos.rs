@@ -78,10 +78,11 @@ pub fn demo(name: &str) -> Option<Plan> {
                 item("Vanilla pudding", "vanilla-pudding", 25.0, 4.0),
             ];
             p.zones = vec![
-                zone("Chicken to 75–85 °C", 75.0, 85.0, 3.0, None),
-                zone("Rice 70–80 °C", 70.0, 80.0, 1.0, None),
+                // Bands sit above the safe minimum so the coldest cell, not the average, clears it.
+                zone("Chicken 85–98 °C", 85.0, 98.0, 3.0, None),
+                zone("Rice 82–96 °C", 82.0, 96.0, 1.0, None),
                 zone("Broccoli 65–75 °C", 65.0, 75.0, 1.0, None),
-                zone("Pudding stays cool", -40.0, 10.0, 1.0, None),
+                zone("Pudding stays cool", -40.0, 10.0, 0.2, None),
             ];
             paint(&mut p, 1, 1, 1..13, 1..9);
             paint(&mut p, 2, 2, 15..27, 1..9);
