@@ -1,7 +1,7 @@
 //! Demo scenarios of our own. All illustrative: invented trays, the synthetic field model, no real
 //! product or measurement behind them.
 
-use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
+use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, Zone};
 
 /// Names of the demos, in the order `traycast demo` lists them.
 pub const DEMOS: [&str; 3] = ["lunch-tray", "frozen-portion", "side-by-side"];
@@ -23,26 +23,16 @@ fn paint(
 }
 
 fn base(name: &str, width: usize, height: usize, cell_mm: f64, seed: u64) -> Plan {
-    let n = width * height;
-    Plan {
-        name: name.into(),
-        tray: TraySize {
-            width,
-            height,
-            cell_mm,
-        },
-        items: vec![],
-        food: vec![0; n],
-        zones: vec![],
-        zone: vec![0; n],
-        oven: Oven {
-            configs: 48,
-            budget_s: Some(360.0),
-            sequencing: Sequencing::Rounds(4),
-            ..Oven::default()
-        },
-        maps: MapSource::Synthetic { seed },
-    }
+    let mut p = Plan::blank(width, height, cell_mm);
+    p.name = name.into();
+    p.oven = Oven {
+        configs: 48,
+        budget_s: Some(360.0),
+        sequencing: Sequencing::Rounds(4),
+        ..Oven::default()
+    };
+    p.maps = MapSource::Synthetic { seed };
+    p
 }
 
 fn item(name: &str, food: &str, thickness_mm: f64, start_c: f64) -> FoodItem {

@@ -302,7 +302,7 @@ pub struct Options {
 /// Caches maps and the warm solver between evaluations of a plan being edited.
 #[derive(Default)]
 pub struct Evaluator {
-    maps_key: Option<(Plan, Option<String>)>,
+    maps_key: Option<(Plan, Option<MapLibrary>)>,
     maps: Option<PlanMaps>,
     solver: Option<(Vec<usize>, DwellSolver)>,
 }
@@ -404,10 +404,15 @@ impl Evaluator {
         plan: &Plan,
         library: Option<&MapLibrary>,
     ) -> Result<&PlanMaps, PlanError> {
-        let key = (maps_key(plan), library.map(|l| l.to_json()));
-        if self.maps_key.as_ref() != Some(&key) || self.maps.is_none() {
+        // Compared in place: the library is only cloned when the maps really change.
+        let layout = maps_key(plan);
+        let same = self
+            .maps_key
+            .as_ref()
+            .is_some_and(|(p, l)| *p == layout && l.as_ref() == library);
+        if !same || self.maps.is_none() {
             self.maps = Some(maps_for(plan, library)?);
-            self.maps_key = Some(key);
+            self.maps_key = Some((layout, library.cloned()));
             self.solver = None;
         }
         Ok(self.maps.as_ref().expect("just set"))
