@@ -2,6 +2,7 @@
 //!
 //! Thin glue: argument parsing and file I/O here, every computation in the library crates.
 
+mod calibrate;
 mod error;
 mod nnls;
 mod numfile;
@@ -31,7 +32,12 @@ enum Command {
         /// Where to write the plan JSON (stdout if omitted).
         #[arg(long)]
         out: Option<PathBuf>,
+        /// Also write invented bench runs of the demo here (a heating-runs CSV to try `calibrate` on).
+        #[arg(long)]
+        runs: Option<PathBuf>,
     },
+    /// Turn recorded heating runs into a map library with standard errors, and report their quality.
+    Calibrate(calibrate::Args),
     /// Solve a plan and report dwells, zones, coldest-cell verdicts and the unsteered baseline.
     Solve {
         /// Plan JSON file.
@@ -90,7 +96,10 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Nnls(args) => nnls::run(&args),
-        Command::Demo { name, out } => plans::demo(name.as_deref(), out.as_deref()),
+        Command::Demo { name, out, runs } => {
+            plans::demo(name.as_deref(), out.as_deref(), runs.as_deref())
+        }
+        Command::Calibrate(args) => calibrate::run(&args),
         Command::Solve {
             plan,
             library,

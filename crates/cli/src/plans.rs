@@ -9,15 +9,15 @@ use traycast_plan::library::MapLibrary;
 use traycast_plan::model::Plan;
 use traycast_plan::{PlanError, demos, wire};
 
-fn read(path: &Path) -> Result<String, CliError> {
+pub fn read(path: &Path) -> Result<String, CliError> {
     std::fs::read_to_string(path).map_err(|e| CliError::at(path, 0, 0, format!("cannot read: {e}")))
 }
 
-fn write(path: &Path, text: &str) -> Result<(), CliError> {
+pub fn write(path: &Path, text: &str) -> Result<(), CliError> {
     std::fs::write(path, text).map_err(|e| CliError::at(path, 0, 0, format!("cannot write: {e}")))
 }
 
-fn in_file(path: &Path) -> impl Fn(PlanError) -> CliError + '_ {
+pub fn in_file(path: &Path) -> impl Fn(PlanError) -> CliError + '_ {
     move |e| {
         let line = e
             .place
@@ -42,8 +42,8 @@ pub fn load_library(path: &Path) -> Result<MapLibrary, CliError> {
     MapLibrary::parse(&read(path)?).map_err(in_file(path))
 }
 
-/// `traycast demo [NAME --out FILE]`.
-pub fn demo(name: Option<&str>, out: Option<&Path>) -> Result<(), CliError> {
+/// `traycast demo [NAME --out FILE --runs FILE]`.
+pub fn demo(name: Option<&str>, out: Option<&Path>, runs: Option<&Path>) -> Result<(), CliError> {
     let Some(name) = name else {
         for d in demos::DEMOS {
             println!("{d}");
@@ -56,6 +56,19 @@ pub fn demo(name: Option<&str>, out: Option<&Path>) -> Result<(), CliError> {
             demos::DEMOS.join(", ")
         ))
     })?;
+    if let Some(path) = runs {
+        let _progress = Progress::after_a_second("inventing bench runs");
+        let text = demos::heating_runs(&plan, &demos::RunRecipe::default())
+            .map_err(|e| CliError(e.to_string()))?;
+        write(path, &text)?;
+        eprintln!(
+            "wrote illustrative heating runs (invented data) to {}",
+            path.display()
+        );
+        if out.is_none() {
+            return Ok(());
+        }
+    }
     match out {
         Some(path) => write(path, &wire::to_json(&plan)),
         None => {
@@ -146,6 +159,20 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
                 ""
             }
         );
+        if let Some(sp) = &r.spread {
+            let _ = writeln!(
+                s,
+                "    95 % from the maps' errors: coldest {:.1}–{:.1}, mean {:.1}–{:.1}, warmest {:.1}–{:.1} °C; verdict judged on these bounds (nominal: {} {:+.1} K)",
+                sp.coldest.0,
+                sp.coldest.1,
+                sp.mean.0,
+                sp.mean.1,
+                sp.warmest.0,
+                sp.warmest.1,
+                if sp.nominal.safe { "meets" } else { "fails" },
+                sp.nominal.margin
+            );
+        }
     }
     let _ = writeln!(
         s,

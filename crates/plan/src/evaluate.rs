@@ -3,7 +3,7 @@
 
 use crate::error::PlanError;
 use crate::field::{self, Absorber};
-use crate::library::{MapLibrary, Window};
+use crate::library::{MapLibrary, RateBasis, Window};
 use crate::model::{MapSource, Plan, Sequencing};
 use traycast_solver::{DwellSolver, Rates, Spec, Status};
 use traycast_thermal::material::Material;
@@ -22,6 +22,10 @@ pub struct PlanMaps {
     pub loaded: Vec<f64>,
     /// Thawed reference state, config-major, K/s: what the time course scales by absorption.
     pub thawed: Vec<f64>,
+    /// Standard errors of `loaded`, config-major, K/s, when the maps were calibrated.
+    pub loaded_se: Option<Vec<f64>>,
+    /// Map values (cell × configuration, food cells of the plan) filled in rather than measured.
+    pub filled: usize,
     /// Where they come from.
     pub provenance: Provenance,
 }
@@ -119,6 +123,8 @@ pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, P
                 cells: n,
                 loaded,
                 thawed: fm.thawed,
+                loaded_se: None,
+                filled: 0,
                 provenance: Provenance::Synthetic,
             })
         }
@@ -153,17 +159,32 @@ pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, P
                 .best_match(&layout(plan))
                 .ok_or_else(|| PlanError::new("maps", "library holds no load"))?;
             let rec = &lib.loads[m.load];
-            let loaded = rec.rates.clone();
-            let thawed = loaded
-                .iter()
-                .enumerate()
-                .map(|(k, r)| r / absorb[k % n].max(1e-6))
-                .collect();
+            // Rates (and their errors) in the state the plan's food starts in, and thawed.
+            let to_loaded = |k: usize| match lib.basis {
+                RateBasis::AsLoaded => 1.0,
+                RateBasis::Thawed => absorb[k % n],
+            };
+            let to_thawed = |k: usize| to_loaded(k) / absorb[k % n].max(1e-6);
+            let scaled = |v: &[f64], f: &dyn Fn(usize) -> f64| -> Vec<f64> {
+                v.iter().enumerate().map(|(k, r)| r * f(k)).collect()
+            };
+            let loaded = scaled(&rec.rates, &to_loaded);
+            let thawed = scaled(&rec.rates, &to_thawed);
+            let loaded_se = rec.uncertainty.as_ref().map(|u| scaled(&u.se, &to_loaded));
+            let filled = rec.uncertainty.as_ref().map_or(0, |u| {
+                u.filled
+                    .iter()
+                    .enumerate()
+                    .filter(|(k, f)| **f && plan.food[k % n] > 0)
+                    .count()
+            });
             Ok(PlanMaps {
                 configs,
                 cells: n,
                 loaded,
                 thawed,
+                loaded_se,
+                filled,
                 provenance: Provenance::Library {
                     library: lib.name.clone(),
                     load: rec.name.clone(),
@@ -210,11 +231,40 @@ pub struct ItemSummary {
     pub max: f64,
     /// Share of the item's zoned cells inside their band after standing (NaN if none is zoned).
     pub in_band: f64,
-    /// The coldest-cell food-safety verdict.
+    /// The coldest-cell food-safety verdict; with calibrated maps it is judged on the bounds
+    /// (the coldest cell's lower bound, the warmest cell's upper bound).
     pub verdict: Verdict,
     /// Water evaporated, g.
     pub moisture_g: f64,
+    /// The 95 % spread from the maps' rate uncertainties, when the maps carry them.
+    pub spread: Option<Spread>,
 }
+
+/// Where an item's temperatures after standing lie given the maps' standard errors: each interval
+/// bounds the quantity when every cell is within its own 95 % interval.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Spread {
+    /// Coldest cell, °C (lower, upper).
+    pub coldest: (f64, f64),
+    /// Mean over the cells, °C (lower, upper).
+    pub mean: (f64, f64),
+    /// Warmest cell, °C (lower, upper).
+    pub warmest: (f64, f64),
+    /// The verdict on the nominal temperatures, for comparison.
+    pub nominal: Verdict,
+}
+
+/// Per-cell 95 % bounds of the temperatures after standing, °C (NaN for empty cells).
+#[derive(Clone, Debug, PartialEq)]
+pub struct CellBounds {
+    /// Lower bounds.
+    pub lower: Vec<f64>,
+    /// Upper bounds.
+    pub upper: Vec<f64>,
+}
+
+/// Normal quantile of a two-sided 95 % interval.
+pub const Z95: f64 = 1.959_963_984_540_054;
 
 /// The same tray heated without steering.
 #[derive(Clone, Debug, PartialEq)]
@@ -273,6 +323,8 @@ pub struct Evaluation {
     pub cap_excess: f64,
     /// The refinement pass, if requested.
     pub refinement: Option<Refinement>,
+    /// Per-cell 95 % bounds after standing, when the maps carry standard errors.
+    pub bounds: Option<CellBounds>,
     /// The usual cautions.
     pub cautions: &'static [&'static str],
 }
@@ -607,37 +659,11 @@ impl Evaluator {
             Sequencing::Rounds(r) => Schedule::rounds(&dwell, r as usize),
         };
         let mats = materials(plan)?;
-        let cells: Vec<Option<CellFill>> = (0..n)
-            .map(|i| {
-                plan.item_at(i).map(|k| CellFill {
-                    item: k,
-                    thickness: plan.items[k].thickness_mm / 1000.0,
-                })
-            })
-            .collect();
-        let start: Vec<f64> = start_temps(plan)
-            .iter()
-            .map(|v| if v.is_nan() { 20.0 } else { *v })
-            .collect();
-        let load = Load {
-            tray: Tray {
-                width: plan.tray.width,
-                height: plan.tray.height,
-                cell_size: plan.tray.cell_mm / 1000.0,
-            },
-            items: &mats,
-            cells: &cells,
-            start: &start,
-        };
-        let sim_maps = simulate::Maps {
-            configs: maps.configs,
-            rates: &maps.thawed,
-        };
         let settings = Settings {
             standing: plan.oven.standing_s,
             ..Settings::default()
         };
-        let course = simulate::simulate(&load, &sim_maps, &schedule, &settings)?;
+        let course = time_course(plan, maps, &mats, &schedule, &settings)?;
         let band = bands(plan);
         let err = |temps: &[f64]| -> Vec<f64> {
             (0..n)
@@ -673,6 +699,20 @@ impl Evaluator {
             warnings
                 .push("maps come from the illustrative field model, not from measurements".into());
         }
+        match (&maps.provenance, &maps.loaded_se) {
+            (Provenance::Library { library, .. }, None) => warnings.push(format!(
+                "library '{library}' carries no rate uncertainties: the predictions have no interval and the verdicts use nominal temperatures"
+            )),
+            (_, Some(_)) if maps.filled > 0 => warnings.push(format!(
+                "{} of the map values on this tray's food were filled from neighbours, not measured; their wider errors are in the intervals",
+                maps.filled
+            )),
+            _ => {}
+        }
+        let bounds = maps
+            .loaded_se
+            .as_ref()
+            .map(|se| cell_bounds(plan, maps, se, &dwell, &mats, &course.after_standing));
         let zones = self.zone_summaries(plan, sol, &dwell, &error_linear, &error_simulated);
         let last = course.times.len() - 1;
         let items = (0..plan.items.len())
@@ -685,10 +725,46 @@ impl Evaluator {
                     .filter(|v| v.is_finite())
                     .collect();
                 let cat = plan.catalogue_food(k).expect("validated");
-                let verdict = if temps.is_empty() {
-                    safety::verdict(cat.safety, &[f64::NAN], plan.oven.standing_s)
+                let temps = if temps.is_empty() {
+                    vec![f64::NAN]
                 } else {
-                    safety::verdict(cat.safety, &temps, plan.oven.standing_s)
+                    temps
+                };
+                let nominal = safety::verdict(cat.safety, &temps, plan.oven.standing_s);
+                let (mean, stood) = (course.items[k].mean[last], plan.oven.standing_s);
+                let (verdict, spread) = match &bounds {
+                    Some(b) if !cells_k.is_empty() => {
+                        let lo: Vec<f64> = cells_k.iter().map(|&i| b.lower[i]).collect();
+                        let hi: Vec<f64> = cells_k.iter().map(|&i| b.upper[i]).collect();
+                        let fold = |v: &[f64], f: fn(f64, f64) -> f64, start| {
+                            v.iter().copied().fold(start, f)
+                        };
+                        let shift = |v: &[f64]| {
+                            cells_k
+                                .iter()
+                                .zip(v)
+                                .map(|(&i, x)| x - course.after_standing[i])
+                                .sum::<f64>()
+                                / cells_k.len() as f64
+                        };
+                        let spread = Spread {
+                            coldest: (
+                                fold(&lo, f64::min, f64::INFINITY),
+                                fold(&hi, f64::min, f64::INFINITY),
+                            ),
+                            mean: (mean + shift(&lo), mean + shift(&hi)),
+                            warmest: (
+                                fold(&lo, f64::max, f64::NEG_INFINITY),
+                                fold(&hi, f64::max, f64::NEG_INFINITY),
+                            ),
+                            nominal,
+                        };
+                        (
+                            safety::verdict_within(cat.safety, &lo, &hi, stood),
+                            Some(spread),
+                        )
+                    }
+                    _ => (nominal, None),
                 };
                 ItemSummary {
                     min: course.items[k].min[last],
@@ -701,6 +777,7 @@ impl Evaluator {
                     },
                     verdict,
                     moisture_g: course.item_moisture_loss[k] * 1000.0,
+                    spread,
                 }
             })
             .collect();
@@ -722,6 +799,7 @@ impl Evaluator {
             warnings,
             cap_excess,
             refinement: None,
+            bounds,
             cautions: &safety::CAUTIONS,
         })
     }
@@ -809,6 +887,83 @@ impl Evaluator {
             })
             .collect()
     }
+}
+
+/// Simulates `schedule` on the plan's load with its thawed maps.
+pub fn time_course(
+    plan: &Plan,
+    maps: &PlanMaps,
+    mats: &[Material],
+    schedule: &Schedule,
+    settings: &Settings,
+) -> Result<TimeCourse, PlanError> {
+    let n = maps.cells;
+    let cells: Vec<Option<CellFill>> = (0..n)
+        .map(|i| {
+            plan.item_at(i).map(|k| CellFill {
+                item: k,
+                thickness: plan.items[k].thickness_mm / 1000.0,
+            })
+        })
+        .collect();
+    let start: Vec<f64> = start_temps(plan)
+        .iter()
+        .map(|v| if v.is_nan() { 20.0 } else { *v })
+        .collect();
+    let load = Load {
+        tray: Tray {
+            width: plan.tray.width,
+            height: plan.tray.height,
+            cell_size: plan.tray.cell_mm / 1000.0,
+        },
+        items: mats,
+        cells: &cells,
+        start: &start,
+    };
+    let sim_maps = simulate::Maps {
+        configs: maps.configs,
+        rates: &maps.thawed,
+    };
+    Ok(simulate::simulate(&load, &sim_maps, schedule, settings)?)
+}
+
+/// Per-cell 95 % bounds after standing from the rates' standard errors.
+///
+/// The linear rise Σ_c r_ic·x_c has the standard deviation √(Σ_c (σ_ic·x_c)²) when the rate errors
+/// are independent; its relative size is applied to the energy the cell gained over the whole
+/// course, and the bounds are read back through the food's enthalpy curve, so a cell whose energy
+/// may fall short ends its lower bound on the thaw plateau rather than below it. Conduction
+/// between cells (which averages errors out) is neglected, which widens the bounds; upper bounds
+/// stop at 100 °C.
+pub fn cell_bounds(
+    plan: &Plan,
+    maps: &PlanMaps,
+    se: &[f64],
+    dwell: &[f64],
+    mats: &[Material],
+    after: &[f64],
+) -> CellBounds {
+    let n = maps.cells;
+    let mut lower = vec![f64::NAN; n];
+    let mut upper = vec![f64::NAN; n];
+    for i in 0..n {
+        let Some(k) = plan.item_at(i) else { continue };
+        let (mut rise, mut var) = (0.0, 0.0);
+        for (c, x) in dwell.iter().enumerate() {
+            rise += maps.loaded[c * n + i] * x;
+            var += (se[c * n + i] * x).powi(2);
+        }
+        let rel = if rise > 0.0 { var.sqrt() / rise } else { 0.0 };
+        let m = &mats[k];
+        let h = m.enthalpy(after[i]);
+        let de = Z95 * rel * (h - m.enthalpy(plan.items[k].start_c)).abs();
+        lower[i] = m.state(h - de, &mut 0).0.min(after[i]);
+        upper[i] = m
+            .state(h + de, &mut 0)
+            .0
+            .clamp(after[i], 100.0f64.max(after[i]));
+    }
+    CellBounds { lower, upper }
 }
 
 /// No steering: the average of all configurations (what a turntable-less oven without field

@@ -6,6 +6,9 @@
 //!   heating maps for any layout, scaled by the IEC 60705 water-load method.
 //! - [`library`]: measured map libraries — CSV and JSON import/export, validation (units, scale),
 //!   load matching and the replay window.
+//! - [`runs`]: recorded heating runs (CSV, °C or confirmed °F) read against a load's layout.
+//! - [`calibrate`]: runs → map library with standard errors, fill flags and a quality report;
+//!   [`regression`] holds the least-squares line and curvature test it uses.
 //! - [`evaluate`]: plan + maps → dwell solve → linear prediction → simulated time course →
 //!   errors, band coverage, coldest-cell verdicts, unsteered baseline, feasibility diagnosis.
 //! - [`robustness`]: the plan's schedule with the foods placed one cell off.
@@ -27,13 +30,17 @@
 //! assert_eq!(wire::from_link(&link).unwrap(), plan);
 //! ```
 
+pub mod calibrate;
+mod csvtext;
 pub mod demos;
 mod error;
 pub mod evaluate;
 pub mod field;
 pub mod library;
 pub mod model;
+pub mod regression;
 pub mod robustness;
+pub mod runs;
 pub mod summary;
 pub mod wire;
 

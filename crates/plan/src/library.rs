@@ -14,8 +14,13 @@
 //! ```
 //!
 //! `class` is meat, watery, salty or fatty (empty cells are simply absent). `units` may be K/s,
-//! K/min or degF/s; rates are converted to K/s on import.
+//! K/min or degF/s; rates are converted to K/s on import. Two optional columns carry a calibrated
+//! library's uncertainties: `rate_se` (standard error, same units as `rate`) and `filled` (1 when
+//! the cell was never measured and its rate was filled in; see [`crate::calibrate`]). An optional
+//! `# basis: thawed` line says the rates are those of thawed food (calibrated libraries);
+//! the default, `as-loaded`, means the state the food was in when it was recorded.
 
+use crate::csvtext::{Sheet, at_line};
 use crate::error::PlanError;
 use serde::{Deserialize, Serialize};
 use traycast_thermal::dielectric::LossClass;
@@ -29,6 +34,44 @@ pub struct RecordedLoad {
     pub layout: Vec<Option<LossClass>>,
     /// Config-major rates, K/s (0 for empty cells).
     pub rates: Vec<f64>,
+    /// Standard errors and fill flags, when the library was calibrated from heating runs.
+    pub uncertainty: Option<Uncertainty>,
+}
+
+/// How well a recorded load's rates are known.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Uncertainty {
+    /// Standard error of each rate, config-major, K/s (0 for empty cells).
+    pub se: Vec<f64>,
+    /// True where the cell was not measured in that configuration and its rate was filled in.
+    pub filled: Vec<bool>,
+}
+
+/// The state of the food the rates describe.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum RateBasis {
+    /// The state the food was in when recorded (frozen food: frozen rates).
+    #[default]
+    AsLoaded,
+    /// Thawed food: rates fitted above the thaw band, as calibration produces them.
+    Thawed,
+}
+
+impl RateBasis {
+    /// The name used in files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            RateBasis::AsLoaded => "as-loaded",
+            RateBasis::Thawed => "thawed",
+        }
+    }
+
+    /// Parses [`RateBasis::as_str`].
+    pub fn parse(s: &str) -> Option<Self> {
+        [RateBasis::AsLoaded, RateBasis::Thawed]
+            .into_iter()
+            .find(|b| b.as_str() == s)
+    }
 }
 
 /// A library of recorded loads for one oven and tray grid.
@@ -44,6 +87,8 @@ pub struct MapLibrary {
     pub cell_mm: f64,
     /// Number of configurations.
     pub configs: usize,
+    /// What state of the food the rates describe.
+    pub basis: RateBasis,
     /// Recorded loads.
     pub loads: Vec<RecordedLoad>,
 }
@@ -177,6 +222,26 @@ impl MapLibrary {
                     "layout or maps do not match the tray size",
                 ));
             }
+            if let Some(u) = &l.uncertainty {
+                if u.se.len() != n * self.configs || u.filled.len() != n * self.configs {
+                    return Err(PlanError::new(
+                        format!("load '{}'", l.name),
+                        "uncertainties do not match the tray size",
+                    ));
+                }
+                if let Some(k) = u.se.iter().position(|v| !(v.is_finite() && *v >= 0.0)) {
+                    return Err(PlanError::new(
+                        format!(
+                            "load '{}', configuration {}, row {}, col {}",
+                            l.name,
+                            k / n,
+                            (k % n) / self.width,
+                            k % self.width
+                        ),
+                        format!("standard error {} is not a non-negative number", u.se[k]),
+                    ));
+                }
+            }
             for c in 0..self.configs {
                 for i in 0..n {
                     let r = l.rates[c * n + i];
@@ -233,67 +298,63 @@ impl MapLibrary {
 
     /// Parses the CSV format (see the module docs). Errors name the line.
     pub fn from_csv(text: &str) -> Result<Self, PlanError> {
-        let mut name = String::from("imported library");
-        let (mut size, mut configs, mut factor) = (None, None, None);
-        let mut body = String::new();
-        let mut first_body_line = 0;
-        for (k, line) in text.lines().enumerate() {
-            let lineno = k + 1;
-            let at = |m: String| PlanError::new(format!("line {lineno}"), m);
-            if let Some(rest) = line.strip_prefix('#') {
-                let rest = rest.trim();
-                if let Some((key, value)) = rest.split_once(':') {
-                    let value = value.trim();
-                    match key.trim() {
-                        "name" => name = value.to_string(),
-                        "tray" => {
-                            // "W x H cells of S mm"
-                            let parts: Vec<&str> = value.split_whitespace().collect();
-                            let parsed = (|| {
-                                Some((
-                                    parts.first()?.parse::<usize>().ok()?,
-                                    parts.get(2)?.parse::<usize>().ok()?,
-                                    parts.get(5)?.parse::<f64>().ok()?,
-                                ))
-                            })();
-                            size = Some(parsed.ok_or_else(|| {
-                                at(format!(
-                                    "tray should read like '12 x 8 cells of 25 mm', not '{value}'"
-                                ))
-                            })?);
-                        }
-                        "configurations" => {
-                            configs = Some(value.parse::<usize>().map_err(|_| {
-                                at(format!("configurations '{value}' is not a whole number"))
-                            })?)
-                        }
-                        "units" => {
-                            factor = Some(match value {
-                                "K/s" => 1.0,
-                                "K/min" => 1.0 / 60.0,
-                                "degF/s" | "°F/s" => 5.0 / 9.0,
-                                other => {
-                                    return Err(at(format!(
-                                        "units '{other}' not understood: use K/s, K/min or degF/s"
-                                    )));
-                                }
-                            })
-                        }
-                        _ => {}
-                    }
-                } else if rest.starts_with("traycast-maps") && rest != "traycast-maps 1" {
-                    return Err(at(format!(
-                        "format '{rest}' is not supported (this version reads 'traycast-maps 1')"
-                    )));
+        let sheet = Sheet::parse(text)?;
+        sheet.check_format("traycast-maps", "1")?;
+        let name = sheet
+            .meta("name")
+            .map_or("imported library".to_string(), |(_, v)| v.to_string());
+        let size = match sheet.meta("tray") {
+            None => None,
+            Some((line, value)) => {
+                // "W x H cells of S mm"
+                let parts: Vec<&str> = value.split_whitespace().collect();
+                let parsed = (|| {
+                    Some((
+                        parts.first()?.parse::<usize>().ok()?,
+                        parts.get(2)?.parse::<usize>().ok()?,
+                        parts.get(5)?.parse::<f64>().ok()?,
+                    ))
+                })();
+                Some(parsed.ok_or_else(|| {
+                    at_line(
+                        line,
+                        format!("tray should read like '12 x 8 cells of 25 mm', not '{value}'"),
+                    )
+                })?)
+            }
+        };
+        let configs = match sheet.meta("configurations") {
+            None => None,
+            Some((line, value)) => Some(value.parse::<usize>().map_err(|_| {
+                at_line(
+                    line,
+                    format!("configurations '{value}' is not a whole number"),
+                )
+            })?),
+        };
+        let factor = match sheet.meta("units") {
+            None => None,
+            Some((line, value)) => Some(match value {
+                "K/s" => 1.0,
+                "K/min" => 1.0 / 60.0,
+                "degF/s" | "°F/s" => 5.0 / 9.0,
+                other => {
+                    return Err(at_line(
+                        line,
+                        format!("units '{other}' not understood: use K/s, K/min or degF/s"),
+                    ));
                 }
-                continue;
-            }
-            if body.is_empty() {
-                first_body_line = lineno;
-            }
-            body.push_str(line);
-            body.push('\n');
-        }
+            }),
+        };
+        let basis = match sheet.meta("basis") {
+            None => RateBasis::AsLoaded,
+            Some((line, value)) => RateBasis::parse(value).ok_or_else(|| {
+                at_line(
+                    line,
+                    format!("basis '{value}' not understood: use as-loaded or thawed"),
+                )
+            })?,
+        };
         let head = |m: &str| PlanError::new("header", m.to_string());
         let (width, height, cell_mm) =
             size.ok_or_else(|| head("missing '# tray: W x H cells of S mm'"))?;
@@ -310,37 +371,29 @@ impl MapLibrary {
             return Err(head("configurations out of range"));
         }
         let n = width * height;
-        let mut reader = csv::ReaderBuilder::new()
-            .trim(csv::Trim::All)
-            .from_reader(body.as_bytes());
-        let headers = reader
-            .headers()
-            .map_err(|e| PlanError::new(format!("line {first_body_line}"), e.to_string()))?
-            .clone();
         let want = ["load", "config", "row", "col", "class", "rate"];
-        if headers.iter().collect::<Vec<_>>() != want {
-            return Err(PlanError::new(
-                format!("line {first_body_line}"),
-                format!("columns should be {}", want.join(",")),
+        let with_se = [&want[..], &["rate_se", "filled"]].concat();
+        let columns: Vec<&str> = sheet.header.iter().map(String::as_str).collect();
+        let has_se = columns == with_se;
+        if columns != want && !has_se {
+            return Err(at_line(
+                sheet.header_line,
+                format!(
+                    "columns should be {} (optionally followed by rate_se,filled)",
+                    want.join(",")
+                ),
             ));
         }
         let mut loads: Vec<RecordedLoad> = Vec::new();
         let mut seen: Vec<Vec<bool>> = Vec::new();
-        for rec in reader.records() {
-            let rec = rec.map_err(|e| {
-                PlanError::new(
-                    format!(
-                        "line {}",
-                        e.position()
-                            .map_or(0, |p| p.line() as usize + first_body_line - 1)
-                    ),
-                    e.to_string(),
-                )
-            })?;
-            let lineno = rec.position().map_or(0, |p| p.line() as usize) + first_body_line - 1;
-            let at = |m: String| PlanError::new(format!("line {lineno}"), m);
-            if rec.len() != 6 {
-                return Err(at(format!("has {} fields, expected 6", rec.len())));
+        for (lineno, rec) in &sheet.records {
+            let at = |m: String| at_line(*lineno, m);
+            if rec.len() != columns.len() {
+                return Err(at(format!(
+                    "has {} fields, expected {}",
+                    rec.len(),
+                    columns.len()
+                )));
             }
             let int = |k: usize, what: &str, max: usize| -> Result<usize, PlanError> {
                 let v: usize = rec[k]
@@ -360,17 +413,32 @@ impl MapLibrary {
                     &rec[4]
                 ))
             })?;
-            let rate: f64 = rec[5]
-                .parse()
-                .map_err(|_| at(format!("rate '{}' is not a number", &rec[5])))?;
-            if !rate.is_finite() {
-                return Err(at(format!("rate '{}' is not a number", &rec[5])));
-            }
+            let number = |k: usize, what: &str| -> Result<f64, PlanError> {
+                match rec[k].parse::<f64>() {
+                    Ok(v) if v.is_finite() => Ok(v),
+                    _ => Err(at(format!("{what} '{}' is not a number", &rec[k]))),
+                }
+            };
+            let rate = number(5, "rate")?;
             if rate < 0.0 {
                 return Err(at(format!(
                     "rate {rate} is negative; heating rates are ≥ 0"
                 )));
             }
+            let se = if has_se && !(rec[6].is_empty() && rec[7].is_empty()) {
+                let se = number(6, "rate_se")?;
+                if se < 0.0 {
+                    return Err(at(format!("rate_se {se} is negative")));
+                }
+                let filled = match rec[7].as_str() {
+                    "0" | "no" | "false" => false,
+                    "1" | "yes" | "true" => true,
+                    other => return Err(at(format!("filled '{other}' should be 0 or 1"))),
+                };
+                Some((se, filled))
+            } else {
+                None
+            };
             let li = match loads.iter().position(|l| l.name == rec[0]) {
                 Some(k) => k,
                 None => {
@@ -378,6 +446,10 @@ impl MapLibrary {
                         name: rec[0].to_string(),
                         layout: vec![None; n],
                         rates: vec![0.0; n * configs],
+                        uncertainty: se.is_some().then(|| Uncertainty {
+                            se: vec![0.0; n * configs],
+                            filled: vec![false; n * configs],
+                        }),
                     });
                     seen.push(vec![false; n * configs]);
                     loads.len() - 1
@@ -403,6 +475,19 @@ impl MapLibrary {
             load.layout[i] = Some(class);
             seen[li][config * n + i] = true;
             load.rates[config * n + i] = rate * factor;
+            match (se, load.uncertainty.as_mut()) {
+                (Some((se, filled)), Some(u)) => {
+                    u.se[config * n + i] = se * factor;
+                    u.filled[config * n + i] = filled;
+                }
+                (None, None) => {}
+                _ => {
+                    return Err(at(format!(
+                        "rate_se and filled must be given on every row of load '{}' or on none",
+                        load.name
+                    )));
+                }
+            }
         }
         for (l, s) in loads.iter().zip(&seen) {
             for i in (0..n).filter(|&i| l.layout[i].is_some()) {
@@ -424,39 +509,54 @@ impl MapLibrary {
             height,
             cell_mm,
             configs,
+            basis,
             loads,
         };
         lib.validate()?;
         Ok(lib)
     }
 
-    /// Writes the CSV format (K/s).
+    /// Writes the CSV format (K/s), with the uncertainty columns when any load carries them.
     pub fn to_csv(&self) -> String {
         let n = self.width * self.height;
+        let with_se = self.loads.iter().any(|l| l.uncertainty.is_some());
         let mut out = format!(
-            "# traycast-maps 1\n# name: {}\n# tray: {} x {} cells of {} mm\n# configurations: {}\n# units: K/s\nload,config,row,col,class,rate\n",
+            "# traycast-maps 1\n# name: {}\n# tray: {} x {} cells of {} mm\n# configurations: {}\n# units: K/s\n",
             self.name.replace('\n', " "),
             self.width,
             self.height,
             self.cell_mm,
             self.configs
         );
+        if self.basis != RateBasis::AsLoaded {
+            out.push_str(&format!("# basis: {}\n", self.basis.as_str()));
+        }
+        out.push_str("load,config,row,col,class,rate");
+        out.push_str(if with_se { ",rate_se,filled\n" } else { "\n" });
         for l in &self.loads {
+            let name = if l.name.contains([',', '"', '\n']) {
+                format!("\"{}\"", l.name.replace('"', "\"\""))
+            } else {
+                l.name.clone()
+            };
             for c in 0..self.configs {
                 for i in 0..n {
                     if let Some(class) = l.layout[i] {
-                        let name = if l.name.contains([',', '"', '\n']) {
-                            format!("\"{}\"", l.name.replace('"', "\"\""))
-                        } else {
-                            l.name.clone()
-                        };
+                        let k = c * n + i;
                         out.push_str(&format!(
-                            "{name},{c},{},{},{},{}\n",
+                            "{name},{c},{},{},{},{}",
                             i / self.width,
                             i % self.width,
                             class.as_str(),
-                            l.rates[c * n + i]
+                            l.rates[k]
                         ));
+                        match (&l.uncertainty, with_se) {
+                            (Some(u), _) => {
+                                out.push_str(&format!(",{},{}\n", u.se[k], u8::from(u.filled[k])))
+                            }
+                            (None, true) => out.push_str(",,\n"),
+                            (None, false) => out.push('\n'),
+                        }
                     }
                 }
             }
@@ -475,6 +575,7 @@ impl MapLibrary {
             cell_mm: self.cell_mm,
             configs: self.configs,
             units: "K/s".into(),
+            basis: self.basis.as_str().into(),
             loads: self
                 .loads
                 .iter()
@@ -490,6 +591,17 @@ impl MapLibrary {
                         .chunks(self.width * self.height)
                         .map(|c| c.to_vec())
                         .collect(),
+                    rate_se: l.uncertainty.as_ref().map(|u| {
+                        u.se.chunks(self.width * self.height)
+                            .map(|c| c.to_vec())
+                            .collect()
+                    }),
+                    filled: l.uncertainty.as_ref().map(|u| {
+                        u.filled
+                            .chunks(self.width * self.height)
+                            .map(|c| c.iter().map(|&f| if f { '1' } else { '0' }).collect())
+                            .collect()
+                    }),
                 })
                 .collect(),
         };
@@ -512,6 +624,12 @@ impl MapLibrary {
         if doc.units != "K/s" {
             return Err(PlanError::new("units", "JSON libraries are stored in K/s"));
         }
+        let basis = RateBasis::parse(&doc.basis).ok_or_else(|| {
+            PlanError::new(
+                "basis",
+                format!("'{}' is not as-loaded or thawed", doc.basis),
+            )
+        })?;
         let n = doc.width * doc.height;
         let mut loads = Vec::new();
         for l in doc.loads {
@@ -541,10 +659,51 @@ impl MapLibrary {
                     "layout or maps do not match the tray size",
                 ));
             }
+            let uncertainty = match (l.rate_se, l.filled) {
+                (None, None) => None,
+                (Some(se), Some(filled)) => {
+                    if se.len() != doc.configs
+                        || se.iter().any(|m| m.len() != n)
+                        || filled.len() != doc.configs
+                        || filled.iter().any(|m| m.chars().count() != n)
+                    {
+                        return Err(PlanError::new(
+                            format!("load '{}'", l.name),
+                            "rate_se or filled do not match the tray size",
+                        ));
+                    }
+                    let mut flags = Vec::with_capacity(n * doc.configs);
+                    for (c, m) in filled.iter().enumerate() {
+                        for ch in m.chars() {
+                            flags.push(match ch {
+                                '0' => false,
+                                '1' => true,
+                                _ => {
+                                    return Err(PlanError::new(
+                                        format!("load '{}' filled[{c}]", l.name),
+                                        format!("'{ch}' is not 0 or 1"),
+                                    ));
+                                }
+                            });
+                        }
+                    }
+                    Some(Uncertainty {
+                        se: se.concat(),
+                        filled: flags,
+                    })
+                }
+                _ => {
+                    return Err(PlanError::new(
+                        format!("load '{}'", l.name),
+                        "rate_se and filled come together",
+                    ));
+                }
+            };
             loads.push(RecordedLoad {
                 name: l.name,
                 layout,
                 rates: l.rates.concat(),
+                uncertainty,
             });
         }
         let lib = MapLibrary {
@@ -553,6 +712,7 @@ impl MapLibrary {
             height: doc.height,
             cell_mm: doc.cell_mm,
             configs: doc.configs,
+            basis,
             loads,
         };
         lib.validate()?;
@@ -572,7 +732,13 @@ struct LibraryDoc {
     cell_mm: f64,
     configs: usize,
     units: String,
+    #[serde(default = "as_loaded")]
+    basis: String,
     loads: Vec<LoadDoc>,
+}
+
+fn as_loaded() -> String {
+    RateBasis::AsLoaded.as_str().into()
 }
 
 #[derive(Serialize, Deserialize)]
@@ -580,4 +746,10 @@ struct LoadDoc {
     name: String,
     layout: Vec<String>,
     rates: Vec<Vec<f64>>,
+    /// Per configuration, per cell standard error, K/s.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    rate_se: Option<Vec<Vec<f64>>>,
+    /// Per configuration, one '0'/'1' per cell (row-major).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    filled: Option<Vec<String>>,
 }

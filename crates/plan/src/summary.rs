@@ -21,6 +21,13 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
         "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
             "name": i.name, "min_c": finite(&r.min), "mean_c": finite(&r.mean), "max_c": finite(&r.max), "safe": r.verdict.safe,
             "margin_k": finite(&r.verdict.margin), "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
+            "verdict_on": if r.spread.is_some() { "95 % bounds" } else { "nominal temperatures" },
+            "spread": r.spread.as_ref().map(|s| serde_json::json!({
+                "coldest_c": [finite(&s.coldest.0), finite(&s.coldest.1)],
+                "mean_c": [finite(&s.mean.0), finite(&s.mean.1)],
+                "warmest_c": [finite(&s.warmest.0), finite(&s.warmest.1)],
+                "nominal_safe": s.nominal.safe, "nominal_margin_k": finite(&s.nominal.margin),
+            })),
         })).collect::<Vec<_>>(),
         "baseline": { "seconds": e.baseline.seconds, "rms_linear_k": e.baseline.rms_linear, "coverage_linear": finite(&e.baseline.coverage_linear) },
         "error_linear": e.error_linear.iter().map(finite).collect::<Vec<_>>(),

@@ -3,7 +3,7 @@
 
 use proptest::prelude::*;
 use traycast_plan::evaluate::{self, Evaluator, Options};
-use traycast_plan::library::{MapLibrary, RecordedLoad, Window};
+use traycast_plan::library::{MapLibrary, RateBasis, RecordedLoad, Uncertainty, Window};
 use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
 use traycast_plan::{demos, wire};
 use traycast_solver::{DwellSolver, Rates, Spec};
@@ -160,10 +160,12 @@ fn tiny_library() -> MapLibrary {
         height: 2,
         cell_mm: 30.0,
         configs: 2,
+        basis: RateBasis::AsLoaded,
         loads: vec![RecordedLoad {
             name: "lunch, run 1".into(),
             layout,
             rates,
+            uncertainty: None,
         }],
     }
 }
@@ -455,4 +457,35 @@ fn quick_path_matches_the_full_evaluation() {
         format!("{:?}", quick.error_linear),
         format!("{:?}", full.error_linear)
     );
+}
+
+#[test]
+fn uncertainties_round_trip_through_both_formats() {
+    let mut lib = tiny_library();
+    lib.basis = RateBasis::Thawed;
+    let food: Vec<bool> = (0..12).map(|k| lib.loads[0].layout[k % 6].is_some()).collect();
+    lib.loads[0].uncertainty = Some(Uncertainty {
+        se: (0..12)
+            .map(|k| if food[k] { 0.001 * (1 + k % 6) as f64 } else { 0.0 })
+            .collect(),
+        filled: (0..12).map(|k| food[k] && k % 5 == 1).collect(),
+    });
+    assert_eq!(MapLibrary::from_csv(&lib.to_csv()).unwrap(), lib);
+    assert_eq!(MapLibrary::from_json(&lib.to_json()).unwrap(), lib);
+    // A row without uncertainty inside a load that has them is refused, naming the line.
+    let csv = lib.to_csv();
+    let broken: Vec<String> = csv
+        .lines()
+        .enumerate()
+        .map(|(k, l)| {
+            if k == 9 {
+                let f: Vec<&str> = l.rsplitn(3, ',').collect();
+                format!("{},,", f[2])
+            } else {
+                l.to_string()
+            }
+        })
+        .collect();
+    let e = MapLibrary::from_csv(&broken.join("\n")).unwrap_err();
+    assert!(e.to_string().contains("line 10"), "{e}");
 }

@@ -261,11 +261,19 @@ pub struct Verdict {
 
 /// Judges an item from its cells' temperatures after standing (°C) and the standing time simulated.
 pub fn verdict(category: SafetyCategory, after_standing: &[f64], stood_seconds: f64) -> Verdict {
-    let coldest = after_standing.iter().copied().fold(f64::INFINITY, f64::min);
-    let warmest = after_standing
-        .iter()
-        .copied()
-        .fold(f64::NEG_INFINITY, f64::max);
+    verdict_within(category, after_standing, after_standing, stood_seconds)
+}
+
+/// Judges an item whose cell temperatures are only known within bounds: minimum requirements are
+/// checked on the coldest lower bound, maximum requirements on the warmest upper bound.
+pub fn verdict_within(
+    category: SafetyCategory,
+    lower: &[f64],
+    upper: &[f64],
+    stood_seconds: f64,
+) -> Verdict {
+    let coldest = lower.iter().copied().fold(f64::INFINITY, f64::min);
+    let warmest = upper.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     let reqs = category.requirements();
     let margin_of = |r: &Requirement| {
         if r.minimum {

@@ -98,3 +98,19 @@ fn verdict_is_judged_on_the_coldest_cell_with_its_margin() {
     }
     assert!(CAUTIONS.iter().any(|c| c.contains("thermometer")));
 }
+
+#[test]
+fn bounded_verdict_judges_minimums_on_lower_and_maximums_on_upper_bounds() {
+    // FDA 3-401.12 (74 °C for microwave-cooked poultry): nominally 76 °C passes, but a lower bound
+    // of 72 °C does not.
+    let v = verdict_within(SafetyCategory::Poultry, &[72.0, 80.0], &[80.0, 88.0], 120.0);
+    assert!(!v.safe);
+    assert!((v.margin + 2.0).abs() < 1e-12 && v.coldest == 72.0);
+    // FDA 3-501.16 cold holding at 5 °C is judged on the warmest upper bound.
+    let v = verdict_within(SafetyCategory::KeepCold, &[2.0, 3.0], &[4.0, 5.5], 120.0);
+    assert!(!v.safe && (v.margin + 0.5).abs() < 1e-12);
+    assert_eq!(
+        verdict_within(SafetyCategory::Poultry, &[75.0], &[75.0], 120.0),
+        verdict(SafetyCategory::Poultry, &[75.0], 120.0)
+    );
+}
