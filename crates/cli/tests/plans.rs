@@ -89,3 +89,88 @@ fn bad_plans_and_links_exit_2_with_one_line() {
     assert_eq!(code, 2);
     assert!(err.contains("lunch-tray"));
 }
+
+#[test]
+fn calibrate_writes_a_library_with_errors_and_a_quality_report() {
+    let dir = std::env::temp_dir().join(format!("traycast-calibrate-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = |name: &str| dir.join(name).to_str().unwrap().to_string();
+    let (plan, runs, lib, probes) = (
+        path("plan.json"),
+        path("runs.csv"),
+        path("lib.json"),
+        path("probes.csv"),
+    );
+    let (code, _, err) = traycast(&["demo", "side-by-side", "--out", &plan, "--runs", &runs]);
+    assert_eq!(code, 0, "{err}");
+    let (code, report, err) = traycast(&[
+        "calibrate",
+        &runs,
+        "--layout",
+        &plan,
+        "--out",
+        &lib,
+        "--probes",
+        &probes,
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(report.contains("median r²") && report.contains("repeatability"));
+    assert!(
+        report.contains("thermometer"),
+        "the usual caution is printed"
+    );
+    let library = std::fs::read_to_string(&lib).unwrap();
+    assert!(library.contains("\"rate_se\"") && library.contains("\"basis\": \"thawed\""));
+    let table = std::fs::read_to_string(&probes).unwrap();
+    assert!(
+        table
+            .lines()
+            .nth(1)
+            .unwrap()
+            .starts_with("run,config,row,col")
+    );
+    // The plan solved on the calibrated library shows intervals.
+    let text = std::fs::read_to_string(&plan).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&library).unwrap();
+    let name = v["name"].as_str().unwrap();
+    let mut doc: serde_json::Value = serde_json::from_str(&text).unwrap();
+    doc["maps"] = serde_json::json!({ "source": "library", "seed": 0, "library": name });
+    let on_lib = path("on-lib.json");
+    std::fs::write(&on_lib, serde_json::to_string(&doc).unwrap()).unwrap();
+    let (code, table, err) = traycast(&["solve", &on_lib, "--library", &lib]);
+    assert_eq!(code, 0, "{err}");
+    assert!(table.contains("95 % from the maps' errors"), "{table}");
+    // A malformed file is refused naming the file and line, and writes nothing.
+    let mut lines: Vec<String> = std::fs::read_to_string(&runs)
+        .unwrap()
+        .lines()
+        .map(str::to_string)
+        .collect();
+    lines[9] = "c0,0,NaN,2,2,5.0".into();
+    let bad = path("bad.csv");
+    std::fs::write(&bad, lines.join("\n")).unwrap();
+    let out = path("never.json");
+    let (code, _, err) = traycast(&["calibrate", &bad, "--layout", &plan, "--out", &out]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("bad.csv:10:") && err.contains("not a number"),
+        "{err}"
+    );
+    assert!(!std::path::Path::new(&out).exists());
+    // °F needs the explicit option.
+    lines[9] = std::fs::read_to_string(&runs)
+        .unwrap()
+        .lines()
+        .nth(9)
+        .unwrap()
+        .into();
+    lines[3] = "run,config,time_s,row,col,temp_f".into();
+    std::fs::write(&bad, lines.join("\n")).unwrap();
+    let (code, _, err) = traycast(&["calibrate", &bad, "--layout", &plan, "--out", &out]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("bad.csv:4:") && err.contains("--fahrenheit"),
+        "{err}"
+    );
+    std::fs::remove_dir_all(&dir).ok();
+}

@@ -9,10 +9,16 @@
 //!    plateau never enters the fit; the rate is therefore that of **thawed** food;
 //! 2. readings from [`Settings::boil_guard_c`] up are dropped (evaporation bends the curve
 //!    towards 100 °C);
-//! 3. while a quadratic term is significant (|t| > [`Settings::curvature_t`]), the window loses
-//!    its first reading when the curve bends upwards (sensor lag, thaw tail) or its last when it
-//!    bends downwards (the approach to boiling, surface losses);
-//! 4. readings more than [`Settings::outlier_sigmas`] robust standard deviations
+//! 3. while a quadratic term is significant (|t| > [`Settings::curvature_t`]) over the window or
+//!    over either half of it, the window loses its first reading when the curve bends upwards
+//!    there (sensor lag, thaw tail) or its last when it bends downwards (the approach to boiling,
+//!    surface losses);
+//! 4. the first [`Settings::settle_time_constants`] sensor time constants of the straight part
+//!    are skipped; the time constant is estimated per run from the probes that start on the
+//!    straight part (see [`sensor_lag`]); the last reading is dropped while the last 3, 6, 12 or
+//!    24 lie significantly below the line through the rest (mean residual below
+//!    −[`Settings::tail_t`] standard errors);
+//! 5. readings more than [`Settings::outlier_sigmas`] robust standard deviations
 //!    (1.4826 × median absolute residual) off the line are dropped as outliers at each step.
 //!
 //! The slope's standard error is the ordinary least-squares one (see [`crate::regression`]).
@@ -45,16 +51,24 @@ pub struct Settings {
     pub outlier_sigmas: f64,
     /// Fewest readings a fit may keep.
     pub min_fit: usize,
+    /// Mean residual of the last readings, in standard errors below the line through the rest,
+    /// beyond which the end is bending down.
+    pub tail_t: f64,
+    /// Sensor time constants skipped at the start of the straight part (the lag transient decays
+    /// as e^(−t/τ): 4 leave 2 %).
+    pub settle_time_constants: f64,
 }
 
 impl Default for Settings {
     fn default() -> Self {
         Settings {
             thaw_margin_k: 3.0,
-            boil_guard_c: 90.0,
+            boil_guard_c: 80.0,
             curvature_t: 3.0,
             outlier_sigmas: 4.0,
             min_fit: 5,
+            settle_time_constants: 4.0,
+            tail_t: 2.5,
         }
     }
 }
@@ -86,8 +100,14 @@ pub struct ProbeFit {
     pub suspect: Option<String>,
 }
 
-/// Fits one series (`freeze_c`: the food's initial freezing point).
-pub fn fit_series(readings: &[Reading], freeze_c: f64, settings: &Settings) -> ProbeFit {
+/// Fits one series (`freeze_c`: the food's initial freezing point; `settle_s`: time skipped at the
+/// start of the straight part for the sensor to catch up, see [`sensor_lag`]).
+pub fn fit_series(
+    readings: &[Reading],
+    freeze_c: f64,
+    settle_s: f64,
+    settings: &Settings,
+) -> ProbeFit {
     let n = readings.len();
     let start = readings
         .iter()
@@ -97,7 +117,11 @@ pub fn fit_series(readings: &[Reading], freeze_c: f64, settings: &Settings) -> P
         .iter()
         .position(|r| r.temp_c >= settings.boil_guard_c)
         .map_or(n, |k| start + k);
-    let (mut a, mut b) = (start, end);
+    let settled = readings[start..end]
+        .iter()
+        .position(|r| r.t >= readings[start.min(n - 1)].t + settle_s)
+        .map_or(end, |k| start + k);
+    let (mut a, mut b) = (settled, end);
     let mut result = ProbeFit {
         series: 0,
         fit: None,
@@ -137,13 +161,27 @@ pub fn fit_series(readings: &[Reading], freeze_c: f64, settings: &Settings) -> P
         }
         let (t, y): (Vec<f64>, Vec<f64>) = inliers.iter().map(|r| (r.t, r.temp_c)).unzip();
         let bend = regression::curvature_t(&t, &y).unwrap_or(0.0);
-        if bend.abs() > settings.curvature_t && b - a > settings.min_fit {
-            if bend > 0.0 {
-                a += 1;
-            } else {
+        if b - a > settings.min_fit {
+            // The last 3, 6, 12 and 24 readings against the line through the rest: the approach
+            // to boiling often bends only the last few, too few for a quadratic term to notice.
+            if bends_down_at_the_end(&t, &y, settings) {
                 b -= 1;
+                continue;
             }
-            continue;
+            // Each half on its own as well: a lagging start and a bending end together make an S
+            // whose overall quadratic term can vanish.
+            let half = t.len() / 2;
+            let early = regression::curvature_t(&t[..=half], &y[..=half]).unwrap_or(0.0);
+            let late = regression::curvature_t(&t[half..], &y[half..]).unwrap_or(0.0);
+            let limit = settings.curvature_t;
+            if early > limit || (bend > limit && late >= -limit) {
+                a += 1;
+                continue;
+            }
+            if late < -limit || bend < -limit {
+                b -= 1;
+                continue;
+            }
         }
         result.curved = bend.abs() > settings.curvature_t;
         result.fit = regression::line(&t, &y);
@@ -174,6 +212,46 @@ pub fn fit_series(readings: &[Reading], freeze_c: f64, settings: &Settings) -> P
     }
     result
 }
+
+/// Whether the last readings lie significantly below the line through the others (mean residual
+/// below −[`Settings::tail_t`] standard errors for the last 3, 6, 12 or 24 readings).
+fn bends_down_at_the_end(t: &[f64], y: &[f64], settings: &Settings) -> bool {
+    [3usize, 6, 12, 24]
+        .into_iter()
+        .filter(|&m| t.len() >= m + settings.min_fit.max(3))
+        .any(|m| {
+            let k = t.len() - m;
+            regression::line(&t[..k], &y[..k]).is_some_and(|body| {
+                let tail = (k..t.len()).map(|j| y[j] - body.at(t[j])).sum::<f64>() / m as f64;
+                tail < -settings.tail_t * body.residual_sd.max(SPREAD_FLOOR_K) / (m as f64).sqrt()
+            })
+        })
+}
+
+/// The probes' time constant, s, estimated from series that start on the straight part: a
+/// first-order sensor on a ramp reads rate × τ below the true temperature once settled, so
+/// τ ≈ (first reading − the fitted line at that time) / slope. Returns the median over `series`
+/// (each: readings, freezing point), or 0 when none qualifies.
+pub fn sensor_lag<'a>(
+    series: impl Iterator<Item = (&'a [Reading], f64)>,
+    settings: &Settings,
+) -> f64 {
+    let mut taus: Vec<f64> = series
+        .filter_map(|(r, freeze)| {
+            if r.first()?.temp_c < freeze + settings.thaw_margin_k {
+                return None;
+            }
+            let f = fit_series(r, freeze, 0.0, settings).fit?;
+            (f.slope > 10.0 * f.slope_se && f.slope > 0.0)
+                .then(|| ((r[0].temp_c - f.at(r[0].t)) / f.slope).clamp(0.0, MAX_LAG_S))
+        })
+        .collect();
+    let tau = regression::median(&mut taus);
+    if tau.is_finite() { tau } else { 0.0 }
+}
+
+/// Largest sensor time constant believed, s (beyond it the probe is not in contact).
+pub const MAX_LAG_S: f64 = 30.0;
 
 /// Splits a window into readings within `sigmas` robust standard deviations of its line and the
 /// lines of the others; also says whether the first reading is an outlier above the line and the
@@ -338,13 +416,26 @@ pub fn calibrate(
     let freeze: Vec<f64> = (0..layout.items.len())
         .map(|k| layout.catalogue_food(k).map_or(0.0, |f| f.freezing_point))
         .collect();
+    let freeze_of = |cell: usize| freeze[layout.item_at(cell).expect("series lie on food")];
+    // Sensor lag per run (probes of one run are usually of one kind).
+    let lags: Vec<f64> = (0..runs.runs.len())
+        .map(|r| {
+            sensor_lag(
+                runs.series
+                    .iter()
+                    .filter(|s| s.run == r)
+                    .map(|s| (s.readings.as_slice(), freeze_of(s.cell))),
+                settings,
+            )
+        })
+        .collect();
     let fits: Vec<ProbeFit> = runs
         .series
         .iter()
         .enumerate()
         .map(|(s, series)| {
-            let item = layout.item_at(series.cell).expect("series lie on food");
-            let mut f = fit_series(&series.readings, freeze[item], settings);
+            let settle = settings.settle_time_constants * lags[series.run];
+            let mut f = fit_series(&series.readings, freeze_of(series.cell), settle, settings);
             f.series = s;
             f
         })

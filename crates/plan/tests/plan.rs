@@ -463,10 +463,18 @@ fn quick_path_matches_the_full_evaluation() {
 fn uncertainties_round_trip_through_both_formats() {
     let mut lib = tiny_library();
     lib.basis = RateBasis::Thawed;
-    let food: Vec<bool> = (0..12).map(|k| lib.loads[0].layout[k % 6].is_some()).collect();
+    let food: Vec<bool> = (0..12)
+        .map(|k| lib.loads[0].layout[k % 6].is_some())
+        .collect();
     lib.loads[0].uncertainty = Some(Uncertainty {
         se: (0..12)
-            .map(|k| if food[k] { 0.001 * (1 + k % 6) as f64 } else { 0.0 })
+            .map(|k| {
+                if food[k] {
+                    0.001 * (1 + k % 6) as f64
+                } else {
+                    0.0
+                }
+            })
             .collect(),
         filled: (0..12).map(|k| food[k] && k % 5 == 1).collect(),
     });
