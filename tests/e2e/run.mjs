@@ -2,7 +2,7 @@
 // Debian's Chromium through playwright-core. Run by `cargo xtask test` (or `cargo xtask e2e`).
 import { chromium } from 'playwright-core';
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -197,6 +197,51 @@ await test('heating maps import through the file picker; a malformed file is ref
   assert(msg.includes('line 8'), 'line number in: ' + msg);
   await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures/measured-maps.csv'));
   await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('imported'));
+});
+
+await test('heating runs calibrate in the workbench like on the command line; a malformed file changes nothing', async ({ page }) => {
+  await open(page);
+  await page.selectOption('select[aria-label="open a demo"]', 'side-by-side');
+  await ready(page);
+  const layout = join(ART, 'runs-layout.json');
+  const runs = join(ART, 'runs.csv');
+  writeFileSync(layout, JSON.stringify(await plan(page), null, 2));
+  execFileSync(CLI, ['demo', 'side-by-side', '--runs', runs]);
+  const lines = readFileSync(runs, 'utf8').split('\n');
+  const bad = join(ART, 'runs-malformed.csv');
+  writeFileSync(bad, lines.map((l, k) => (k === 9 ? 'c0,0,4,2,2,NaN' : l)).join('\n'));
+  const before = await page.evaluate(() => window.traycast.link());
+  await page.locator('#import-runs').setInputFiles(bad);
+  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('refused'));
+  const msg = await page.locator('#notice').textContent();
+  assert(msg.includes('line 10') && msg.includes('not a number'), 'line named in: ' + msg);
+  assert((await page.evaluate(() => window.traycast.link())) === before, 'plan unchanged');
+  // A °F header is refused until the user ticks the °F box.
+  const fahr = join(ART, 'runs-fahrenheit.csv');
+  writeFileSync(fahr, lines.map((l, k) => (k === 3 ? 'run,config,time_s,row,col,temp_f' : l)).join('\n'));
+  await page.locator('#notice button').click();
+  await page.locator('#import-runs').setInputFiles(fahr);
+  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('refused'));
+  assert((await page.locator('#notice').textContent()).includes('°F box'), 'asks to confirm °F');
+  await page.locator('#import-runs').setInputFiles(runs);
+  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('Calibrated'));
+  await ready(page);
+  const report = await page.locator('#quality').textContent();
+  assert(report.includes('median r²') && report.includes('notes'), 'quality report shown');
+  const web = await evaluation(page);
+  web.items.forEach((it, k) => assert(it.spread && it.verdict_on === '95 % bounds', `item ${k} has an interval`));
+  assert((await page.locator('table.items td.spread').count()) === 2 * web.items.length, 'coldest and mean intervals in the table');
+  // The command line, given the same runs and layout, builds the same library and the same plan.
+  const lib = join(ART, 'runs-library.json');
+  execFileSync(CLI, ['calibrate', runs, '--layout', layout, '--out', lib]);
+  const onLib = join(ART, 'runs-plan.json');
+  writeFileSync(onLib, JSON.stringify(await plan(page), null, 2));
+  const cli = JSON.parse(execFileSync(CLI, ['solve', onLib, '--library', lib, '--format', 'json']).toString());
+  cli.dwell_s.forEach((d, j) => assert(d.toFixed(1) === web.dwell_s[j].toFixed(1), `dwell ${j}: cli ${d} web ${web.dwell_s[j]}`));
+  const round = (s) => JSON.stringify(s, (key, v) => (typeof v === 'number' ? v.toFixed(1) : v));
+  cli.items.forEach((it, k) => assert(round(it.spread) === round(web.items[k].spread), `spread ${k}: ${round(it.spread)} vs ${round(web.items[k].spread)}`));
+  await page.locator('#quality').scrollIntoViewIfNeeded();
+  await page.screenshot({ path: join(ART, 'workbench-calibration.png'), fullPage: true });
 });
 
 await test('a food named like markup shows literally and runs nothing', async ({ page }) => {

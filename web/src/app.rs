@@ -7,9 +7,11 @@ use crate::surface;
 use crate::units::Unit;
 use leptos::html;
 use leptos::prelude::*;
+use traycast_plan::calibrate::{self, QualityReport};
 use traycast_plan::evaluate::{Diagnosis, Evaluation, Evaluator, Options, Quick};
 use traycast_plan::library::MapLibrary;
 use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
+use traycast_plan::runs::{HeatingRuns, ReadOptions};
 use traycast_plan::{demos, wire};
 use traycast_thermal::catalogue::CATALOGUE;
 use traycast_thermal::safety::CAUTIONS;
@@ -94,6 +96,9 @@ pub fn App() -> impl IntoView {
     let brush = RwSignal::new(1usize);
     let rect = RwSignal::new(false);
     let library: RwSignal<Option<MapLibrary>> = RwSignal::new(None);
+    // The last calibration: its quality report and per-probe table (CSV).
+    let quality: RwSignal<Option<(QualityReport, String)>> = RwSignal::new(None);
+    let runs_in_f = RwSignal::new(false);
     let eval: RwSignal<Option<Result<Evaluation, String>>> = RwSignal::new(None);
     let hover = RwSignal::new(None::<usize>);
     let link_len = RwSignal::new(0usize);
@@ -380,12 +385,19 @@ pub fn App() -> impl IntoView {
             Some(Ok(e)) => {
                 let p = plan.get();
                 let u = unit.get();
+                let with_spread = e.items.iter().any(|s| s.spread.is_some());
                 let items = p.items.iter().zip(&e.items).map(|(it, s)| {
                     let v = &s.verdict;
-                    let verdict = if v.safe { format!("meets, +{:.1}", u.diff(v.margin)) } else { format!("FAILS, {:.1}", u.diff(v.margin)) };
+                    let on = if s.spread.is_some() { " at the lower bound" } else { "" };
+                    let verdict = if v.safe { format!("meets{on}, +{:.1}", u.diff(v.margin)) } else { format!("FAILS{on}, {:.1}", u.diff(v.margin)) };
+                    let range = |r: (f64, f64)| format!("{:.1}–{:.1} {}", u.temp(r.0), u.temp(r.1), u.symbol());
+                    let spread = s.spread.as_ref().map(|sp| view! {
+                        <td class="spread" title="95 % from the maps' rate errors">{range(sp.coldest)}</td>
+                        <td class="spread" title="95 % from the maps' rate errors">{range(sp.mean)}</td>
+                    });
                     view! {
                         <tr class:unsafe=!v.safe>
-                            <td>{it.name.clone()}</td><td>{u.fmt(s.min)}</td><td>{u.fmt(s.mean)}</td><td>{u.fmt(s.max)}</td>
+                            <td>{it.name.clone()}</td><td>{u.fmt(s.min)}</td><td>{u.fmt(s.mean)}</td><td>{u.fmt(s.max)}</td>{spread}
                             <td>{if s.in_band.is_finite() { format!("{:.0} %", 100.0 * s.in_band) } else { "—".into() }}</td>
                             <td class="verdict" title=v.binding.source.clone()>{verdict}</td>
                             <td>{format!("{:.1} g", s.moisture_g)}</td>
@@ -406,7 +418,7 @@ pub fn App() -> impl IntoView {
                 let budget = p.oven.budget_s.map_or("no budget".to_string(), |b| format!("of {b:.0} s"));
                 view! {
                     <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
-                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest"</th><th>"mean"</th><th>"warmest"</th><th>"in band"</th><th>"coldest-cell verdict"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
+                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest"</th><th>"mean"</th><th>"warmest"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"coldest-cell verdict"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
                     <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", if u == Unit::Celsius { "K" } else { "°F" })}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
                     <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
                     <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>
@@ -460,6 +472,66 @@ pub fn App() -> impl IntoView {
             }
             Err(e) => notice.set(Some(format!("The map library was refused: {e}"))),
         });
+    };
+    let on_import_runs = move |ev: leptos::ev::Event| {
+        let fahrenheit = runs_in_f.get_untracked();
+        read_picked_file(&ev, notice, move |text| {
+            let layout = plan.get_untracked();
+            let result =
+                HeatingRuns::parse(&text, &layout, ReadOptions { fahrenheit }).and_then(|runs| {
+                    calibrate::calibrate(&runs, &layout, &calibrate::Settings::default())
+                        .map(|c| (c.probe_table(&runs), c))
+                });
+            match result {
+                Ok((table, cal)) => {
+                    let name = cal.library.name.clone();
+                    let runs = cal.report.runs;
+                    library.set(Some(cal.library));
+                    quality.set(Some((cal.report, table)));
+                    edit(&|p| p.maps = MapSource::Library { name: name.clone() });
+                    notice.set(Some(format!("Calibrated '{name}' from {runs} runs on this tray; the quality report is under the outcome.")));
+                }
+                Err(e) => notice.set(Some(format!(
+                    "The heating runs were refused (the plan is unchanged): {e}"
+                ))),
+            }
+        });
+    };
+    let quality_view = move || {
+        quality.with(|q| {
+            q.as_ref().map(|(r, _)| {
+                let pct = |v: f64| if v.is_finite() { format!("{:.1} %", 100.0 * v) } else { "—".into() };
+                let rows = r.configs.iter().map(|c| {
+                    let repeat = c.repeat.as_ref().map_or("single run".to_string(), |x| format!("{} cells, median Δ {}, {} beyond 3 SE", x.cells, pct(x.median_relative_difference), x.disagreeing));
+                    view! {
+                        <tr><td>{c.config}</td><td>{c.runs.join(", ")}</td><td>{c.measured}</td><td>{c.filled}</td>
+                        <td>{if c.median_r2.is_finite() { format!("{:.4}", c.median_r2) } else { "—".into() }}</td>
+                        <td>{pct(c.median_relative_se)}</td><td>{c.outliers}</td><td>{c.suspect}</td><td>{repeat}</td></tr>
+                    }
+                }).collect_view();
+                let notes = r.notes.iter().take(30).map(|n| view! { <li>{r.note_line(n)}</li> }).collect_view();
+                let more = r.notes.len().saturating_sub(30);
+                view! {
+                    <section id="quality" class="quality">
+                        <h2>"Calibration quality"</h2>
+                        <p>{format!("'{}' on layout '{}': {} runs, {} readings on food ({} over empty cells ignored). Rates are least-squares slopes over the straight part of each curve (thaw band, lag, the approach to boiling and outliers dropped); unmeasured cells are filled from the nearest measured cell of the same food and flagged.", r.name, r.layout, r.runs, r.readings, r.ignored)}</p>
+                        <details open=r.configs.len() <= 12>
+                            <summary>{format!("{} configurations", r.configs.len())}</summary>
+                            <table class="quality-table"><thead><tr><th>"config"</th><th>"runs"</th><th>"measured"</th><th>"filled"</th><th>"median r²"</th><th>"median SE/rate"</th><th>"outliers"</th><th>"suspect"</th><th>"repeatability"</th></tr></thead><tbody>{rows}</tbody></table>
+                        </details>
+                        <details open=r.notes.len() <= 10>
+                            <summary>{format!("{} notes: suspect probes, disagreeing repeats, outliers, filled cells", r.notes.len())}</summary>
+                            <ul class="notes">{notes}</ul>
+                            {(more > 0).then(|| view! { <p>{format!("… and {more} more in the per-probe table.")}</p> })}
+                        </details>
+                        <div class="row">
+                            <button on:click=move |_| { if let Some(l) = library.get_untracked() { download("library.traycast-maps.json", "application/json", &l.to_json()); } }>"Save calibrated library"</button>
+                            <button on:click=move |_| { quality.with_untracked(|q| if let Some((_, t)) = q { download("probe-fits.csv", "text/csv", t); }); }>"Save per-probe table"</button>
+                        </div>
+                    </section>
+                }
+            })
+        })
     };
     let on_import_plan = move |ev: leptos::ev::Event| {
         read_picked_file(&ev, notice, move |text| match wire::from_json(&text) {
@@ -534,6 +606,9 @@ pub fn App() -> impl IntoView {
                 <label>"Standing time (s)"<input type="number" prop:value=move || plan.with(|p| p.oven.standing_s.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.standing_s = v); } /></label>
                 <h2>"Files"</h2>
                 <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_import_library /></label>
+                <label class="file">"Calibrate from heating runs (CSV)"<input id="import-runs" type="file" accept=".csv,text/csv" on:change=on_import_runs /></label>
+                <label class="check"><input id="runs-fahrenheit" type="checkbox" prop:checked=move || runs_in_f.get() on:change=move |ev| runs_in_f.set(event_target_checked(&ev)) />"runs are in °F"</label>
+                <button on:click=move |_| { match demos::heating_runs(&plan.get_untracked(), &demos::RunRecipe::default()) { Ok(t) => download("illustrative-runs.csv", "text/csv", &t), Err(e) => notice.set(Some(format!("No runs could be invented for this tray: {e}"))) } }>"Invent bench runs for this tray (illustrative)"</button>
                 <label class="file">"Open plan file"<input id="import-plan" type="file" accept=".json,application/json" on:change=on_import_plan /></label>
                 <div class="row">
                     <button on:click=move |_| download("plan.traycast.json", "application/json", &wire::to_json(&plan.get_untracked()))>"Save plan"</button>
@@ -558,6 +633,7 @@ pub fn App() -> impl IntoView {
                 <canvas id="time-course" node_ref=course_ref></canvas>
                 <h2>"Outcome"</h2>
                 <div id="summary">{summary}</div>
+                {quality_view}
                 <aside class="cautions" id="cautions">
                     <h3>"Before you serve"</h3>
                     <ul>{CAUTIONS.iter().map(|c| view! { <li>{*c}</li> }).collect_view()}</ul>

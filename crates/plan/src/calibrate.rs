@@ -29,7 +29,8 @@
 //! Cells never measured (or only by suspect probes) are filled from the nearest measured cell of
 //! the same food (ties averaged), else of the same absorption class; their standard error adds
 //! the food's spatial variation in that configuration, a linear semivariogram γ(d) = γ₁·d fitted
-//! from adjacent measured pairs and capped at the food's rate variance. Filled cells are flagged.
+//! from measured pairs at the shortest lag available (1 to 4 cells along rows and columns) and
+//! capped at the food's rate variance. Filled cells are flagged.
 
 use crate::error::PlanError;
 use crate::evaluate::layout as loss_layout;
@@ -657,7 +658,7 @@ fn fill(
     let w = layout.tray.width;
     let classes = loss_layout(layout);
     let source = measured.to_vec();
-    // Spatial variation per item: γ₁ from adjacent measured pairs, capped at the rate variance.
+    // Spatial variation per item: γ₁ per cell of distance, capped at the rate variance.
     let items = layout.items.len();
     let mut gamma1 = vec![f64::NAN; items];
     let mut variance = vec![f64::NAN; items];
@@ -673,24 +674,32 @@ fn fill(
             let m = r.iter().sum::<f64>() / r.len() as f64;
             *var = r.iter().map(|v| (v - m).powi(2)).sum::<f64>() / (r.len() - 1) as f64;
         }
-        let (mut sum, mut pairs) = (0.0, 0usize);
-        for &i in &cells {
-            for j in [i + 1, i + w] {
-                let adjacent = j < n && (j == i + w || j % w != 0);
-                if adjacent
-                    && layout.item_at(j) == Some(k)
-                    && let (Some(a), Some(b)) = (source[i], source[j])
-                {
-                    sum += 0.5 * (a.rate - b.rate).powi(2);
-                    pairs += 1;
+        // The semivariogram at the shortest lag along rows and columns (1 to 4 cells) with at
+        // least three measured pairs, scaled to one cell: γ₁ = γ(L)/L.
+        let cap = if var.is_nan() { f64::INFINITY } else { *var };
+        *g1 = (1..=4usize)
+            .find_map(|lag| {
+                let (mut sum, mut pairs) = (0.0, 0usize);
+                for &i in &cells {
+                    let (r, c) = (i / w, i % w);
+                    for j in [
+                        (c + lag < w).then(|| i + lag),
+                        (r + lag < n / w).then(|| i + lag * w),
+                    ]
+                    .into_iter()
+                    .flatten()
+                    {
+                        if layout.item_at(j) == Some(k)
+                            && let (Some(a), Some(b)) = (source[i], source[j])
+                        {
+                            sum += 0.5 * (a.rate - b.rate).powi(2);
+                            pairs += 1;
+                        }
+                    }
                 }
-            }
-        }
-        *g1 = if pairs > 0 {
-            (sum / pairs as f64).min(if var.is_nan() { f64::INFINITY } else { *var })
-        } else {
-            *var
-        };
+                (pairs >= 3).then(|| (sum / pairs as f64 / lag as f64).min(cap))
+            })
+            .unwrap_or(*var);
     }
     let mut filled = vec![false; n];
     for i in 0..n {

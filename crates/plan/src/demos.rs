@@ -156,6 +156,12 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
     use crate::evaluate::{maps_for, materials, time_course};
     use traycast_thermal::schedule::Schedule;
     use traycast_thermal::simulate::Settings;
+    // Always the illustrative field model (a plan on a library keeps its layout, seed 1).
+    let mut plan = plan.clone();
+    if !matches!(plan.maps, MapSource::Synthetic { .. }) {
+        plan.maps = MapSource::Synthetic { seed: 1 };
+    }
+    let plan = &plan;
     let maps = maps_for(plan, None)?;
     let mats = materials(plan)?;
     let (n, w) = (plan.tray.cells(), plan.tray.width);

@@ -238,9 +238,8 @@ pub fn e2e() -> Result<(), String> {
     build()?;
     let addr = serve_background(root().join("dist"), 0)?;
     let cli = root().join("target/release/traycast");
-    if !cli.exists() {
-        cargo(&["build", "--release", "--package", "traycast-cli"])?;
-    }
+    // Always (a no-op when current): a stale binary would compare the page with old code.
+    cargo(&["build", "--release", "--package", "traycast-cli"])?;
     ensure_chromium()?;
     let status = std::process::Command::new("node")
         .arg(root().join("tests/e2e/run.mjs"))
