@@ -371,6 +371,8 @@ pub struct QualityReport {
     pub readings: usize,
     /// Readings over empty cells (ignored).
     pub ignored: usize,
+    /// Sensor time constant estimated per run, s: (run, τ).
+    pub sensor_lag_s: Vec<(String, f64)>,
     /// Per configuration.
     pub configs: Vec<ConfigQuality>,
     /// Notes per cell, most actionable kind first, then by configuration and cell.
@@ -609,6 +611,12 @@ pub fn calibrate(
             runs: runs.runs.len(),
             readings: runs.series.iter().map(|s| s.readings.len()).sum(),
             ignored: runs.ignored,
+            sensor_lag_s: runs
+                .runs
+                .iter()
+                .zip(&lags)
+                .map(|(r, t)| (r.id.clone(), *t))
+                .collect(),
             configs: qualities,
             notes,
             settings: *settings,
@@ -799,9 +807,11 @@ impl QualityReport {
             }
         };
         let s = &self.settings;
+        let mut lags: Vec<f64> = self.sensor_lag_s.iter().map(|(_, t)| *t).collect();
+        let lag_median = regression::median(&mut lags);
         let mut out = format!(
             "Calibration of '{}' on layout '{}'\n{} runs, {} readings on food ({} over empty cells ignored), {} configurations.\n\
-             Method: least-squares slope over the straight part of each probe's curve. Dropped: readings up to the last one below the freezing point + {} K (rates are for thawed food), readings from {} °C up, leading or trailing readings while a quadratic term is significant (|t| > {}), outliers beyond {} robust σ. Repeats: inverse-variance mean, error widened by the Birge ratio. Unmeasured cells: nearest measured cell of the same food, error widened by the food's spatial variation.\n\n",
+             Method: least-squares slope over the straight part of each probe's curve. Dropped: readings up to the last one below the freezing point + {} K (rates are for thawed food); readings from {} °C up; the first {} sensor time constants of the straight part (τ estimated per run: median {:.1} s, range {:.1}–{:.1} s); leading or trailing readings while a quadratic term is significant (|t| > {}) or the last readings fall below the line (< −{} SE); outliers beyond {} robust σ. Repeats: inverse-variance mean, error widened by the Birge ratio. Unmeasured cells: nearest measured cell of the same food, error widened by the food's spatial variation.\n\n",
             self.name,
             self.layout,
             self.runs,
@@ -810,7 +820,12 @@ impl QualityReport {
             self.configs.len(),
             s.thaw_margin_k,
             s.boil_guard_c,
+            s.settle_time_constants,
+            lag_median,
+            lags.first().copied().unwrap_or(f64::NAN),
+            lags.last().copied().unwrap_or(f64::NAN),
             s.curvature_t,
+            s.tail_t,
             s.outlier_sigmas
         );
         out.push_str("config  runs             probes  measured  filled  median r²  median SE/rate  outliers  suspect  repeatability\n");

@@ -149,17 +149,28 @@ impl Default for RunRecipe {
 }
 
 /// Invented bench runs of a demo plan, as a "traycast-runs 1" CSV: each configuration heated on
-/// its own for `recipe.seconds` from the plan's start temperatures, simulated with the illustrative
-/// field model and the thermal model (so frozen food shows its thaw plateau), seen through lagging,
-/// noisy probes. Illustrative data for trying calibration, not measurements.
+/// its own for `recipe.seconds` from the plan's start temperatures (frozen items from 4 °C, as
+/// calibration runs are best made), simulated with the illustrative field model and the thermal
+/// model, seen through lagging, noisy probes. Illustrative data for trying calibration, not
+/// measurements.
 pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::PlanError> {
     use crate::evaluate::{maps_for, materials, time_course};
     use traycast_thermal::schedule::Schedule;
     use traycast_thermal::simulate::Settings;
-    // Always the illustrative field model (a plan on a library keeps its layout, seed 1).
+    // Always the illustrative field model (a plan on a library keeps its layout, seed 1), and
+    // frozen items run thawed at 4 °C, as calibration runs are best made: the library's rates are
+    // thawed rates, and a short run from frozen spends itself on the thaw plateau.
     let mut plan = plan.clone();
     if !matches!(plan.maps, MapSource::Synthetic { .. }) {
         plan.maps = MapSource::Synthetic { seed: 1 };
+    }
+    let mut thawed = Vec::new();
+    for k in 0..plan.items.len() {
+        let freeze = plan.catalogue_food(k).map_or(0.0, |f| f.freezing_point);
+        if plan.items[k].start_c < freeze + 3.0 {
+            plan.items[k].start_c = 4.0;
+            thawed.push(plan.items[k].name.clone());
+        }
     }
     let plan = &plan;
     let maps = maps_for(plan, None)?;
@@ -184,6 +195,12 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         "# traycast-runs 1\n# name: Illustrative bench runs, {} (invented data)\n# each configuration heated alone for {} s, probes every {} cell(s), sensor lag {} s, noise {} K\nrun,config,time_s,row,col,temp_c\n",
         plan.name, recipe.seconds, every, recipe.lag_s, recipe.noise_k
     );
+    if !thawed.is_empty() {
+        out.insert_str(
+            out.find("run,config").expect("header written"),
+            &format!("# run thawed from 4 °C: {}\n", thawed.join(", ")),
+        );
+    }
     let order = (0..plan.oven.configs)
         .map(|c| (c, format!("c{c}")))
         .chain(recipe.repeat.iter().map(|&c| (c, format!("c{c}-again"))));
@@ -193,16 +210,18 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         let course = time_course(plan, &maps, &mats, &Schedule::blocks(&dwell), &settings)?;
         for &i in &probes {
             let mut seen = course.frames[0][i];
-            let mut last_t = course.times[0];
+            let (mut last_t, mut last_temp) = (course.times[0], course.frames[0][i]);
             for (t, frame) in course.times.iter().zip(&course.frames) {
-                // A first-order sensor: dy/dt = (T − y)/τ, stepped exactly per interval.
-                let keep = if recipe.lag_s > 0.0 {
-                    (-(t - last_t) / recipe.lag_s).exp()
-                } else {
-                    0.0
-                };
-                seen = frame[i] + (seen - frame[i]) * keep;
-                last_t = *t;
+                // A first-order sensor, dy/dt = (T − y)/τ, stepped exactly for a temperature that
+                // runs linearly between recorded frames.
+                let (dt, temp) = (t - last_t, frame[i]);
+                if dt > 0.0 {
+                    let tau = recipe.lag_s.max(1e-9);
+                    let slope = (temp - last_temp) / dt;
+                    seen =
+                        temp - slope * tau + (seen - last_temp + slope * tau) * (-dt / tau).exp();
+                }
+                (last_t, last_temp) = (*t, temp);
                 let reading = ((seen + recipe.noise_k * gauss()) * 10.0).round() / 10.0;
                 out.push_str(&format!("{id},{c},{t},{},{},{reading:.1}\n", i / w, i % w));
             }

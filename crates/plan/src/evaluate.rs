@@ -6,6 +6,7 @@ use crate::field::{self, Absorber};
 use crate::library::{MapLibrary, RateBasis, Window};
 use crate::model::{MapSource, Plan, Sequencing};
 use traycast_solver::{DwellSolver, Rates, Spec, Status};
+use traycast_thermal::composition::LATENT_VAPORISATION;
 use traycast_thermal::material::Material;
 use traycast_thermal::safety::{self, Verdict};
 use traycast_thermal::schedule::Schedule;
@@ -712,7 +713,7 @@ impl Evaluator {
         let bounds = maps
             .loaded_se
             .as_ref()
-            .map(|se| cell_bounds(plan, maps, se, &dwell, &mats, &course.after_standing));
+            .map(|se| cell_bounds(plan, maps, se, &dwell, &mats, &course));
         let zones = self.zone_summaries(plan, sol, &dwell, &error_linear, &error_simulated);
         let last = course.times.len() - 1;
         let items = (0..plan.items.len())
@@ -930,20 +931,22 @@ pub fn time_course(
 /// Per-cell 95 % bounds after standing from the rates' standard errors.
 ///
 /// The linear rise Σ_c r_ic·x_c has the standard deviation √(Σ_c (σ_ic·x_c)²) when the rate errors
-/// are independent; its relative size is applied to the energy the cell gained over the whole
-/// course, and the bounds are read back through the food's enthalpy curve, so a cell whose energy
-/// may fall short ends its lower bound on the thaw plateau rather than below it. Conduction
-/// between cells (which averages errors out) is neglected, which widens the bounds; upper bounds
-/// stop at 100 °C.
+/// are independent; its relative size is applied to the energy the cell absorbed over the whole
+/// course (its enthalpy gain plus the water it evaporated), and the bounds are read back through
+/// the food's enthalpy curve: a cell whose energy may fall short ends its lower bound on the thaw
+/// plateau rather than below it, and a boiling cell first loses the energy that only evaporated
+/// water. Conduction between cells (which averages errors out) is neglected, which widens the
+/// bounds; upper bounds stop at 100 °C.
 pub fn cell_bounds(
     plan: &Plan,
     maps: &PlanMaps,
     se: &[f64],
     dwell: &[f64],
     mats: &[Material],
-    after: &[f64],
+    course: &TimeCourse,
 ) -> CellBounds {
     let n = maps.cells;
+    let cell_m = plan.tray.cell_mm / 1000.0;
     let mut lower = vec![f64::NAN; n];
     let mut upper = vec![f64::NAN; n];
     for i in 0..n {
@@ -955,13 +958,14 @@ pub fn cell_bounds(
         }
         let rel = if rise > 0.0 { var.sqrt() / rise } else { 0.0 };
         let m = &mats[k];
-        let h = m.enthalpy(after[i]);
-        let de = Z95 * rel * (h - m.enthalpy(plan.items[k].start_c)).abs();
-        lower[i] = m.state(h - de, &mut 0).0.min(after[i]);
-        upper[i] = m
-            .state(h + de, &mut 0)
-            .0
-            .clamp(after[i], 100.0f64.max(after[i]));
+        let after = course.after_standing[i];
+        let mass = m.density * cell_m * cell_m * plan.items[k].thickness_mm / 1000.0;
+        let evaporated = LATENT_VAPORISATION * course.moisture_loss[i] / mass;
+        let h = m.enthalpy(after);
+        let absorbed = h - m.enthalpy(plan.items[k].start_c) + evaporated;
+        let de = Z95 * rel * absorbed.abs();
+        lower[i] = m.state((h + evaporated - de).min(h), &mut 0).0.min(after);
+        upper[i] = m.state(h + de, &mut 0).0.clamp(after, 100.0f64.max(after));
     }
     CellBounds { lower, upper }
 }
