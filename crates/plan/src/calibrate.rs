@@ -192,6 +192,9 @@ pub fn fit_series(
         result.late = n - b;
         break;
     }
+    if result.fit.is_none() {
+        result.suspect = Some("no line fits its readings".into());
+    }
     if let Some(f) = result.fit {
         if result.curved {
             result.suspect = Some(format!(
@@ -413,6 +416,28 @@ pub fn calibrate(
             "runs",
             format!(
                 "configuration {c} has no run; the layout's oven has {configs} configurations and every one must be measured"
+            ),
+        ));
+    }
+    if let Some(s) = runs
+        .series
+        .iter()
+        .find(|s| s.cell >= n || layout.food[s.cell] == 0 || s.readings.is_empty())
+    {
+        return Err(PlanError::new(
+            "runs",
+            format!(
+                "{} is not on food in layout '{}': read the runs against the same layout",
+                s.position, layout.name
+            ),
+        ));
+    }
+    if let Some(r) = runs.runs.iter().find(|r| r.config >= configs) {
+        return Err(PlanError::new(
+            "runs",
+            format!(
+                "run '{}' heats configuration {}, the layout's oven has {configs}",
+                r.id, r.config
             ),
         ));
     }

@@ -186,11 +186,6 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         ..Settings::default()
     };
     let mut rng = traycast_solver::synthetic::SplitMix::new(recipe.seed);
-    let mut gauss = move || {
-        // Box–Muller.
-        let (u, v) = (rng.unit().max(1e-300), rng.unit());
-        (-2.0 * u.ln()).sqrt() * (std::f64::consts::TAU * v).cos()
-    };
     let mut out = format!(
         "# traycast-runs 1\n# name: Illustrative bench runs, {} (invented data)\n# each configuration heated alone for {} s, probes every {} cell(s), sensor lag {} s, noise {} K\nrun,config,time_s,row,col,temp_c\n",
         plan.name, recipe.seconds, every, recipe.lag_s, recipe.noise_k
@@ -222,7 +217,7 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
                         temp - slope * tau + (seen - last_temp + slope * tau) * (-dt / tau).exp();
                 }
                 (last_t, last_temp) = (*t, temp);
-                let reading = ((seen + recipe.noise_k * gauss()) * 10.0).round() / 10.0;
+                let reading = ((seen + recipe.noise_k * rng.normal()) * 10.0).round() / 10.0;
                 out.push_str(&format!("{id},{c},{t},{},{},{reading:.1}\n", i / w, i % w));
             }
         }

@@ -91,13 +91,7 @@ struct Truth {
 /// random onset between 75 and 88 °C (slope continuous there).
 fn synthetic_runs(plan: &Plan, seed: u64, lag_s: f64, noise_k: f64) -> Truth {
     let mut rng = SplitMix::new(seed);
-    let mut gauss = {
-        let mut r2 = SplitMix::new(seed ^ 0x9e37_79b9);
-        move || {
-            let (u, v) = (r2.unit().max(1e-300), r2.unit());
-            (-2.0 * u.ln()).sqrt() * (std::f64::consts::TAU * v).cos()
-        }
-    };
+    let mut noise = SplitMix::new(seed ^ 0x9e37_79b9);
     let n = plan.tray.cells();
     let mut rates = vec![0.0; n * plan.oven.configs];
     let mut text = String::from(
@@ -146,7 +140,7 @@ fn synthetic_runs(plan: &Plan, seed: u64, lag_s: f64, noise_k: f64) -> Truth {
                     }
                 }
                 let spike = if rng.unit() < 0.01 { 5.0 } else { 0.0 };
-                let reading = ((seen + noise_k * gauss() + spike) * 10.0).round() / 10.0;
+                let reading = ((seen + noise_k * noise.normal() + spike) * 10.0).round() / 10.0;
                 text.push_str(&format!(
                     "r{c},{c},{},{},{},{reading:.1}\n",
                     k as f64 * step,
@@ -372,65 +366,26 @@ fn malformed_runs_are_refused_naming_the_line() {
     let plan = layout();
     let good = synthetic_runs(&plan, 5, 2.0, 0.1).text;
     // Line 1–3: format, name, header; line 4 is r0 at 0 s for row 0 col 0, line 5 at 2 s, …
-    let cases: Vec<(String, &str, &str)> = vec![
-        (
-            with_line(&good, 6, "r0,0,NaN,0,0,5.0"),
-            "line 6",
-            "not a number",
-        ),
-        (
-            with_line(&good, 6, "r0,0,4,0,0,NaN"),
-            "line 6",
-            "not a number",
-        ),
-        (
-            with_line(&good, 6, "r0,0,1.0,0,0,5.0"),
-            "line 6",
-            "backwards",
-        ),
-        (
-            with_line(&good, 6, "r0,0,2,0,0,5.0"),
-            "line 6",
-            "duplicated",
-        ),
-        (
-            with_line(&good, 6, "r0,0,4,9,0,5.0"),
-            "line 6",
-            "out of range",
-        ),
-        (
-            with_line(&good, 6, "r0,7,4,0,0,5.0"),
-            "line 6",
-            "out of range",
-        ),
-        (
-            with_line(&good, 6, "r0,1,4,0,0,5.0"),
-            "line 6",
-            "one run heats one configuration",
-        ),
-        (with_line(&good, 6, "r0,0,4,0,0,500"), "line 6", "outside"),
-        (with_line(&good, 6, "r0,0,4,0"), "line 6", "fields"),
-        (
-            with_line(&good, 3, "run,config,time_s,row,col,temp_f"),
-            "line 3",
-            "°F",
-        ),
-        (
-            with_line(&good, 3, "run,config,time,row,col,temp_c"),
-            "line 3",
-            "columns",
-        ),
-        (
-            with_line(&good, 1, "# traycast-runs 2"),
-            "line 1",
-            "not supported",
-        ),
+    let cases: [(usize, &str, &str); 12] = [
+        (6, "r0,0,NaN,0,0,5.0", "not a number"),
+        (6, "r0,0,4,0,0,NaN", "not a number"),
+        (6, "r0,0,1.0,0,0,5.0", "backwards"),
+        (6, "r0,0,2,0,0,5.0", "duplicated"),
+        (6, "r0,0,4,9,0,5.0", "out of range"),
+        (6, "r0,7,4,0,0,5.0", "out of range"),
+        (6, "r0,1,4,0,0,5.0", "one run heats one configuration"),
+        (6, "r0,0,4,0,0,500", "outside"),
+        (6, "r0,0,4,0", "fields"),
+        (3, "run,config,time_s,row,col,temp_f", "°F"),
+        (3, "run,config,time,row,col,temp_c", "columns"),
+        (1, "# traycast-runs 2", "not supported"),
     ];
-    for (text, place, words) in cases {
-        let e = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap_err();
+    for (line, new, words) in cases {
+        let e = HeatingRuns::parse(&with_line(&good, line, new), &plan, ReadOptions::default())
+            .unwrap_err();
         assert!(
-            e.place == place && e.message.contains(words),
-            "{e} should be at {place} and say '{words}'"
+            e.place == format!("line {line}") && e.message.contains(words),
+            "{e} should be at line {line} and say '{words}'"
         );
     }
     // A probe that never moves while the run heats.
@@ -613,16 +568,12 @@ fn interval_propagation_matches_sampling() {
     let mats = evaluate::materials(&p).unwrap();
     let n = maps.cells;
     let mut rng = SplitMix::new(42);
-    let mut gauss = move || {
-        let (u, v) = (rng.unit().max(1e-300), rng.unit());
-        (-2.0 * u.ln()).sqrt() * (std::f64::consts::TAU * v).cos()
-    };
     let mut checked = 0;
     for i in (0..n).filter(|&i| p.food[i] > 0).step_by(7) {
         let draws: Vec<f64> = (0..4000)
             .map(|_| {
                 (0..maps.configs)
-                    .map(|c| (maps.loaded[c * n + i] + se[c * n + i] * gauss()) * e.dwell[c])
+                    .map(|c| (maps.loaded[c * n + i] + se[c * n + i] * rng.normal()) * e.dwell[c])
                     .sum::<f64>()
             })
             .collect();
@@ -691,4 +642,22 @@ fn the_safety_verdict_is_judged_on_the_lower_bound() {
     let json = traycast_plan::summary::to_json(&p, &wide);
     assert_eq!(json["items"][0]["verdict_on"], "95 % bounds");
     assert!(json["items"][0]["spread"]["coldest_c"][0].is_number());
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(64))]
+    /// Any line of a good file replaced by arbitrary text: a line-numbered refusal or a
+    /// calibration, never a panic.
+    #[test]
+    fn hostile_lines_never_panic(line in 0usize..400, junk in "\\PC{0,40}", seed in 0u64..4) {
+        let plan = layout();
+        let good = synthetic_runs(&plan, seed, 2.0, 0.1).text;
+        let text = with_line(&good, line + 1, &junk);
+        match HeatingRuns::parse(&text, &plan, ReadOptions::default()) {
+            Ok(runs) => {
+                let _ = calibrate::calibrate(&runs, &plan, &Settings::default());
+            }
+            Err(e) => proptest::prop_assert!(!e.message.is_empty()),
+        }
+    }
 }

@@ -33,6 +33,12 @@ impl SplitMix {
     pub fn below(&mut self, n: u64) -> u64 {
         self.next_u64() % n.max(1)
     }
+
+    /// Standard normal (Box–Muller, one of the pair).
+    pub fn normal(&mut self) -> f64 {
+        let (u, v) = (self.unit().max(f64::MIN_POSITIVE), self.unit());
+        (-2.0 * u.ln()).sqrt() * (std::f64::consts::TAU * v).cos()
+    }
 }
 
 /// A tray-shaped problem: rates for `width × height` cells (row-major cells) and a painted target rise.
