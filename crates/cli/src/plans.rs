@@ -284,14 +284,16 @@ pub fn open(link: &str, out: Option<&Path>) -> Result<(), CliError> {
 pub fn library(convert: bool, file: &Path, out: Option<&Path>) -> Result<(), CliError> {
     let lib = load_library(file)?;
     if !convert {
+        let with_errors = lib.loads.iter().filter(|l| l.uncertainty.is_some()).count();
         println!(
-            "{}: {} recorded loads, {} configurations, {} × {} cells of {} mm — valid",
+            "{}: {} recorded loads ({with_errors} with standard errors), {} configurations, {} × {} cells of {} mm, {} rates — valid",
             lib.name,
             lib.loads.len(),
             lib.configs,
             lib.width,
             lib.height,
-            lib.cell_mm
+            lib.cell_mm,
+            lib.basis.as_str()
         );
         return Ok(());
     }
