@@ -38,6 +38,7 @@ use crate::library::{MapLibrary, RateBasis, RecordedLoad, Uncertainty};
 use crate::model::Plan;
 use crate::regression::{self, LineFit};
 use crate::runs::{HeatingRuns, Reading};
+use traycast_thermal::dielectric::LossClass;
 
 /// Thresholds of the rate estimation (defaults are Traycast's choices, stated in the report).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -446,13 +447,15 @@ pub fn calibrate(
         .collect();
     let freeze_of = |cell: usize| freeze[layout.item_at(cell).expect("series lie on food")];
     // Sensor lag per run (probes of one run are usually of one kind).
-    let lags: Vec<f64> = (0..runs.runs.len())
-        .map(|r| {
+    let lags: Vec<f64> = runs
+        .series_by_run()
+        .iter()
+        .map(|members| {
             sensor_lag(
-                runs.series
-                    .iter()
-                    .filter(|s| s.run == r)
-                    .map(|s| (s.readings.as_slice(), freeze_of(s.cell))),
+                members.iter().map(|&k| {
+                    let s = &runs.series[k];
+                    (s.readings.as_slice(), freeze_of(s.cell))
+                }),
                 settings,
             )
         })
@@ -473,17 +476,16 @@ pub fn calibrate(
     let mut se = vec![0.0; n * configs];
     let mut filled = vec![false; n * configs];
     let mut qualities = Vec::with_capacity(configs);
-    for c in 0..configs {
+    let classes = loss_layout(layout);
+    let food_cells = (0..n).filter(|&i| layout.food[i] > 0).count();
+    for (c, members) in runs.series_by_config(configs).iter().enumerate() {
         let mut per_cell: Vec<Vec<(Estimate, usize)>> = vec![Vec::new(); n];
         let mut r2 = Vec::new();
-        let (mut outliers, mut suspect, mut probes) = (0, 0, 0);
-        for (s, f) in fits.iter().enumerate() {
-            let series = &runs.series[s];
+        let (mut outliers, mut suspect) = (0, 0);
+        let probes = members.len();
+        for &s in members {
+            let (f, series) = (&fits[s], &runs.series[s]);
             let run = &runs.runs[series.run];
-            if run.config != c {
-                continue;
-            }
-            probes += 1;
             let note = |kind, detail| Note {
                 config: c,
                 cell: series.cell,
@@ -574,7 +576,7 @@ pub fn calibrate(
             }
             measured[i] = Some(combined.0);
         }
-        let filled_here = fill(layout, &mut measured, c, &mut notes)?;
+        let filled_here = fill(layout, &classes, &mut measured, c, &mut notes)?;
         let mut rel = Vec::new();
         for i in 0..n {
             if let Some(e) = measured[i] {
@@ -586,7 +588,6 @@ pub fn calibrate(
                 }
             }
         }
-        let food_cells = (0..n).filter(|&i| layout.food[i] > 0).count();
         let filled_count = filled_here.iter().filter(|f| **f).count();
         qualities.push(ConfigQuality {
             config: c,
@@ -621,7 +622,7 @@ pub fn calibrate(
         basis: RateBasis::Thawed,
         loads: vec![RecordedLoad {
             name: layout.name.clone(),
-            layout: loss_layout(layout),
+            layout: classes,
             rates,
             uncertainty: Some(Uncertainty { se, filled }),
         }],
@@ -679,17 +680,17 @@ fn combine(est: &[Estimate]) -> (Estimate, f64) {
     )
 }
 
-/// Fills unmeasured food cells of configuration `c` (see the module docs); returns which cells
-/// were filled.
+/// Fills unmeasured food cells of configuration `c` (see the module docs; `classes` is the
+/// layout's absorption class per cell); returns which cells were filled.
 fn fill(
     layout: &Plan,
+    classes: &[Option<LossClass>],
     measured: &mut [Option<Estimate>],
     c: usize,
     notes: &mut Vec<Note>,
 ) -> Result<Vec<bool>, PlanError> {
     let n = measured.len();
     let w = layout.tray.width;
-    let classes = loss_layout(layout);
     let source = measured.to_vec();
     // Spatial variation per item: γ₁ per cell of distance, capped at the rate variance.
     let items = layout.items.len();

@@ -266,8 +266,9 @@ impl HeatingRuns {
                 "no reading falls on a food cell of the layout",
             ));
         }
-        let runs = finish_runs(runs, &series)?;
-        check_series(&runs, &series)?;
+        let groups = group(runs.len(), &series, |s| s.run);
+        let runs = finish_runs(runs, &series, &groups)?;
+        check_series(&runs, &series, &groups)?;
         Ok(HeatingRuns {
             name,
             runs,
@@ -275,15 +276,37 @@ impl HeatingRuns {
             ignored,
         })
     }
+
+    /// Indices into [`HeatingRuns::series`] per run, ascending.
+    pub fn series_by_run(&self) -> Vec<Vec<usize>> {
+        group(self.runs.len(), &self.series, |s| s.run)
+    }
+
+    /// Indices into [`HeatingRuns::series`] per configuration (`configs` of them), ascending.
+    pub fn series_by_config(&self, configs: usize) -> Vec<Vec<usize>> {
+        group(configs, &self.series, |s| self.runs[s.run].config)
+    }
+}
+
+/// Series indices grouped by `key` (which must be below `groups`), ascending in each group.
+fn group(groups: usize, series: &[Series], key: impl Fn(&Series) -> usize) -> Vec<Vec<usize>> {
+    let mut out = vec![Vec::new(); groups];
+    for (k, s) in series.iter().enumerate() {
+        out[key(s)].push(k);
+    }
+    out
 }
 
 /// Durations and the length check on every run.
-fn finish_runs(mut runs: Vec<Run>, series: &[Series]) -> Result<Vec<Run>, PlanError> {
-    for (r, run) in runs.iter_mut().enumerate() {
-        let times = series
+fn finish_runs(
+    mut runs: Vec<Run>,
+    series: &[Series],
+    groups: &[Vec<usize>],
+) -> Result<Vec<Run>, PlanError> {
+    for (run, members) in runs.iter_mut().zip(groups) {
+        let times = members
             .iter()
-            .filter(|s| s.run == r)
-            .flat_map(|s| s.readings.iter().map(|x| x.t));
+            .flat_map(|&k| series[k].readings.iter().map(|x| x.t));
         let (lo, hi) = times.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), t| {
             (a.min(t), b.max(t))
         });
@@ -302,7 +325,7 @@ fn finish_runs(mut runs: Vec<Run>, series: &[Series]) -> Result<Vec<Run>, PlanEr
 }
 
 /// Per-probe checks: enough readings, and not stuck while the run heats.
-fn check_series(runs: &[Run], series: &[Series]) -> Result<(), PlanError> {
+fn check_series(runs: &[Run], series: &[Series], groups: &[Vec<usize>]) -> Result<(), PlanError> {
     let rise = |s: &Series| {
         let (lo, hi) = s
             .readings
@@ -312,10 +335,10 @@ fn check_series(runs: &[Run], series: &[Series]) -> Result<(), PlanError> {
             });
         hi - lo
     };
-    for (r, run) in runs.iter().enumerate() {
-        let mut rises: Vec<f64> = series.iter().filter(|s| s.run == r).map(rise).collect();
+    for (run, members) in runs.iter().zip(groups) {
+        let mut rises: Vec<f64> = members.iter().map(|&k| rise(&series[k])).collect();
         let median = crate::regression::median(&mut rises);
-        for s in series.iter().filter(|s| s.run == r) {
+        for s in members.iter().map(|&k| &series[k]) {
             let (first, last) = (s.readings[0].line, s.readings[s.readings.len() - 1].line);
             if s.readings.len() < MIN_SAMPLES {
                 return Err(at_line(

@@ -361,6 +361,18 @@ fn with_line(text: &str, k: usize, new: &str) -> String {
         .join("\n")
 }
 
+/// The synthetic file with its header (line 3) replaced and every record rewritten by `f`.
+fn with_records(text: &str, header: &str, f: impl Fn(&[&str]) -> String) -> String {
+    text.lines()
+        .enumerate()
+        .map(|(j, l)| match j {
+            0 | 1 => format!("{l}\n"),
+            2 => format!("{header}\n"),
+            _ => format!("{}\n", f(&l.split(',').collect::<Vec<_>>())),
+        })
+        .collect()
+}
+
 #[test]
 fn malformed_runs_are_refused_naming_the_line() {
     let plan = layout();
@@ -435,30 +447,19 @@ fn malformed_runs_are_refused_naming_the_line() {
 fn fahrenheit_needs_the_explicit_option_and_converts() {
     let plan = layout();
     let good = synthetic_runs(&plan, 9, 2.0, 0.1).text;
-    let f_text: String = good
-        .lines()
-        .enumerate()
-        .map(|(j, l)| {
-            if j == 2 {
-                return "run,config,time_s,row,col,temp_f\n".to_string();
-            }
-            let f: Vec<&str> = l.split(',').collect();
-            if j < 2 {
-                return format!("{l}\n");
-            }
-            let c: f64 = f[5].parse().unwrap();
-            // °F = °C × 9/5 + 32 (the definition of the Fahrenheit scale).
-            format!(
-                "{},{},{},{},{},{}\n",
-                f[0],
-                f[1],
-                f[2],
-                f[3],
-                f[4],
-                c * 9.0 / 5.0 + 32.0
-            )
-        })
-        .collect();
+    // °F = °C × 9/5 + 32 (the definition of the Fahrenheit scale).
+    let f_text = with_records(&good, "run,config,time_s,row,col,temp_f", |f| {
+        let c: f64 = f[5].parse().unwrap();
+        format!(
+            "{},{},{},{},{},{}",
+            f[0],
+            f[1],
+            f[2],
+            f[3],
+            f[4],
+            c * 9.0 / 5.0 + 32.0
+        )
+    });
     assert!(HeatingRuns::parse(&f_text, &plan, ReadOptions::default()).is_err());
     let yes = ReadOptions { fahrenheit: true };
     assert!(HeatingRuns::parse(&good, &plan, yes).is_err());
@@ -476,29 +477,11 @@ fn probe_positions_in_millimetres_map_to_cells() {
     let plan = layout();
     let good = synthetic_runs(&plan, 13, 2.0, 0.1).text;
     // Cells are 20 mm: row r, col c → centre x = 20c + 10, y = 20r + 10.
-    let mm: String = good
-        .lines()
-        .enumerate()
-        .map(|(j, l)| {
-            if j == 2 {
-                return "run,config,time_s,x_mm,y_mm,temp_c\n".into();
-            }
-            if j < 2 {
-                return format!("{l}\n");
-            }
-            let f: Vec<&str> = l.split(',').collect();
-            let (r, c): (f64, f64) = (f[3].parse().unwrap(), f[4].parse().unwrap());
-            format!(
-                "{},{},{},{},{},{}\n",
-                f[0],
-                f[1],
-                f[2],
-                20.0 * c + 10.0,
-                20.0 * r + 10.0,
-                f[5]
-            )
-        })
-        .collect();
+    let mm = with_records(&good, "run,config,time_s,x_mm,y_mm,temp_c", |f| {
+        let (r, c): (f64, f64) = (f[3].parse().unwrap(), f[4].parse().unwrap());
+        let (x, y) = (20.0 * c + 10.0, 20.0 * r + 10.0);
+        format!("{},{},{},{x},{y},{}", f[0], f[1], f[2], f[5])
+    });
     let a = HeatingRuns::parse(&good, &plan, ReadOptions::default()).unwrap();
     let b = HeatingRuns::parse(&mm, &plan, ReadOptions::default()).unwrap();
     assert_eq!(a.series.len(), b.series.len());
