@@ -1,7 +1,8 @@
 //! `traycast nnls` end to end: files in, numbers out, errors that name the place.
 
+mod common;
+
 use std::path::PathBuf;
-use std::process::Command;
 
 fn scratch(name: &str) -> PathBuf {
     let dir = std::env::temp_dir().join(format!("traycast-nnls-{}-{name}", std::process::id()));
@@ -10,16 +11,7 @@ fn scratch(name: &str) -> PathBuf {
 }
 
 fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_traycast"))
-        .arg("nnls")
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
+    common::traycast(&[&["nnls"], args].concat())
 }
 
 fn fmt(v: &serde_json::Value) -> String {

@@ -1,18 +1,8 @@
 //! Plan commands end to end.
 
-use std::process::Command;
+mod common;
 
-fn traycast(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_traycast"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
-}
+use common::traycast;
 
 #[test]
 fn demo_solve_link_open_round_trip() {
