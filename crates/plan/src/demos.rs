@@ -165,9 +165,10 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         plan.maps = MapSource::Synthetic { seed: 1 };
     }
     let mut thawed = Vec::new();
+    let margin = crate::calibrate::Settings::default().thaw_margin_k;
     for k in 0..plan.items.len() {
         let freeze = plan.catalogue_food(k).map_or(0.0, |f| f.freezing_point);
-        if plan.items[k].start_c < freeze + 3.0 {
+        if plan.items[k].start_c < freeze + margin {
             plan.items[k].start_c = 4.0;
             thawed.push(plan.items[k].name.clone());
         }
