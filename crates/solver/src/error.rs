@@ -98,6 +98,25 @@ pub enum InputError {
         /// The length it has.
         found: usize,
     },
+    /// A non-zero value whose magnitude is outside [`crate::MAGNITUDE_RANGE`].
+    Magnitude {
+        /// The input holding the value.
+        field: Field,
+        /// Cell index (or configuration index for limits), if the field is a vector or matrix.
+        index: Option<usize>,
+        /// Configuration index, for the rate matrix.
+        config: Option<usize>,
+        /// The offending value.
+        value: f64,
+    },
+    /// A problem with more cells or configurations than [`crate::MAX_CELLS`] and
+    /// [`crate::MAX_CONFIGS`] allow.
+    TooLarge {
+        /// Cells (rows) given.
+        cells: usize,
+        /// Configurations (columns) given.
+        configs: usize,
+    },
     /// A cell index past the end of the tray.
     OutOfRange {
         /// The input holding the index.
@@ -155,6 +174,31 @@ impl fmt::Display for InputError {
                 expected,
                 found,
             } => write!(f, "{field} has {found} entries, expected {expected}"),
+            InputError::Magnitude {
+                field,
+                index,
+                config,
+                value,
+            } => {
+                let (lo, hi) = crate::MAGNITUDE_RANGE;
+                write!(f, "{field} {value:e}")?;
+                if let Some(i) = index {
+                    write!(f, " at index {i}")?;
+                    if let Some(j) = config {
+                        write!(f, ", configuration {j}")?;
+                    }
+                }
+                write!(
+                    f,
+                    " is out of range: non-zero values must lie between {lo:e} and {hi:e} in magnitude (rescale the units)"
+                )
+            }
+            InputError::TooLarge { cells, configs } => write!(
+                f,
+                "{cells} cells × {configs} configurations is too large: at most {} cells and {} configurations",
+                crate::MAX_CELLS,
+                crate::MAX_CONFIGS
+            ),
             InputError::OutOfRange { field, index, len } => {
                 write!(f, "{field} {index} is out of range (there are {len})")
             }

@@ -13,7 +13,9 @@
 //! # Overview
 //!
 //! - [`Rates`] and [`Spec`] hold the problem; both are validated and bad input is an [`InputError`]
-//!   naming what is wrong and where.
+//!   naming what is wrong and where. Sizes are bounded ([`MAX_CELLS`], [`MAX_CONFIGS`]) and every
+//!   non-zero number must lie inside [`MAGNITUDE_RANGE`]: data the method cannot certify is refused,
+//!   and a solve whose certificate fails [`CERTIFY_TOL`] says so ([`Status::Uncertified`]).
 //! - [`DwellSolver`] caches everything that depends only on the rates and weights (the Gram matrix of
 //!   the cells outside their band, the Cholesky factor of the free block), so a re-solve after a target
 //!   edit is warm, and [`DwellSolver::update_rates`] corrects the cache by low-rank updates.
@@ -53,6 +55,12 @@ mod solver;
 pub mod synthetic;
 
 pub use error::{Field, InputError};
-pub use problem::{Rates, Spec, band_distance, objective};
+pub use problem::{
+    MAGNITUDE_RANGE, MAX_CELLS, MAX_CONFIGS, Rates, Spec, band_distance, check_size, objective,
+};
 pub use solution::{Iterations, Solution, Status};
 pub use solver::DwellSolver;
+
+/// Largest KKT residual (relative to the data's scale) a solve may have and still report
+/// [`Status::Optimal`] or [`Status::BudgetBinding`]; above it the status is [`Status::Uncertified`].
+pub const CERTIFY_TOL: f64 = 1e-6;

@@ -14,6 +14,7 @@ pub struct Rates {
 impl Rates {
     /// Builds rates from row-major data (`cells` rows of `configs` values).
     pub fn from_row_major(cells: usize, configs: usize, data: &[f64]) -> Result<Self, InputError> {
+        check_size(cells, configs)?;
         if data.len() != cells * configs {
             return Err(InputError::Dimension {
                 field: Field::Rates,
@@ -26,6 +27,7 @@ impl Rates {
 
     /// Builds rates from one map per configuration (each `cells` long).
     pub fn from_columns(cells: usize, columns: &[Vec<f64>]) -> Result<Self, InputError> {
+        check_size(cells, columns.len())?;
         for col in columns {
             if col.len() != cells {
                 return Err(InputError::Dimension {
@@ -41,6 +43,7 @@ impl Rates {
 
     /// Wraps a matrix after checking every entry.
     pub fn from_matrix(matrix: DMatrix<f64>) -> Result<Self, InputError> {
+        check_size(matrix.nrows(), matrix.ncols())?;
         for j in 0..matrix.ncols() {
             for i in 0..matrix.nrows() {
                 check_rate(i, j, matrix[(i, j)])?;
@@ -87,6 +90,47 @@ impl Rates {
     }
 }
 
+/// Smallest and largest magnitude of a non-zero number the solver takes (rates, band edges,
+/// weights, limits, budget, μ, λ). Inside this range every product the method forms (Gram entries,
+/// squared residuals, gradients) stays a normal floating-point number; outside it, a certificate
+/// could not be trusted, so such input is refused rather than solved wrongly.
+pub const MAGNITUDE_RANGE: (f64, f64) = (1e-100, 1e100);
+
+/// Most configurations (columns) a problem may have: bounds the n×n Gram matrix (2 MiB).
+pub const MAX_CONFIGS: usize = 512;
+/// Most cells (rows) a problem may have: a 128 × 128 tray, as plans allow. With
+/// [`MAX_CONFIGS`] the rate matrix is at most 64 MiB.
+pub const MAX_CELLS: usize = 16_384;
+
+/// True when `v` is zero or its magnitude is inside [`MAGNITUDE_RANGE`] (infinities are the
+/// caller's business).
+fn in_magnitude(v: f64) -> bool {
+    let a = v.abs();
+    a == 0.0 || a.is_infinite() || (MAGNITUDE_RANGE.0..=MAGNITUDE_RANGE.1).contains(&a)
+}
+
+fn out_of_range(
+    field: Field,
+    index: Option<usize>,
+    config: Option<usize>,
+    value: f64,
+) -> InputError {
+    InputError::Magnitude {
+        field,
+        index,
+        config,
+        value,
+    }
+}
+
+/// Checks the problem's shape against [`MAX_CELLS`] and [`MAX_CONFIGS`] before anything is allocated.
+pub fn check_size(cells: usize, configs: usize) -> Result<(), InputError> {
+    if cells > MAX_CELLS || configs > MAX_CONFIGS {
+        return Err(InputError::TooLarge { cells, configs });
+    }
+    Ok(())
+}
+
 pub(crate) fn check_rate(cell: usize, config: usize, v: f64) -> Result<(), InputError> {
     if !v.is_finite() {
         return Err(InputError::NotFinite {
@@ -102,6 +146,9 @@ pub(crate) fn check_rate(cell: usize, config: usize, v: f64) -> Result<(), Input
             config,
             value: v,
         });
+    }
+    if !in_magnitude(v) {
+        return Err(out_of_range(Field::Rates, Some(cell), Some(config), v));
     }
     Ok(())
 }
@@ -182,6 +229,11 @@ impl Spec {
             if w <= 0.0 {
                 return Err(InputError::NonPositiveWeight { cell: i, value: w });
             }
+            for (field, v) in [(Field::Lower, lo), (Field::Upper, hi), (Field::Weights, w)] {
+                if !in_magnitude(v) {
+                    return Err(out_of_range(field, Some(i), None, v));
+                }
+            }
         }
         for (j, &u) in self.upper.iter().enumerate() {
             if u.is_nan() {
@@ -193,6 +245,9 @@ impl Spec {
                     index: Some(j),
                     value: u,
                 });
+            }
+            if !in_magnitude(u) {
+                return Err(out_of_range(Field::Limits, Some(j), None, u));
             }
         }
         if let Some(t) = self.budget {
@@ -229,12 +284,18 @@ fn non_negative_scalar(field: Field, v: f64, inf_ok: bool) -> Result<(), InputEr
             value: v,
         });
     }
+    if !in_magnitude(v) {
+        return Err(out_of_range(field, None, None, v));
+    }
     Ok(())
 }
 
-/// Signed distance of `z` outside `[lo, hi]`: negative below, positive above, zero inside.
+/// Signed distance of `z` outside `[lo, hi]`: negative below, positive above, zero inside; NaN
+/// when `z` is not a number (never counted as inside).
 pub fn band_distance(z: f64, lo: f64, hi: f64) -> f64 {
-    if z < lo {
+    if z.is_nan() {
+        f64::NAN
+    } else if z < lo {
         z - lo
     } else if z > hi {
         z - hi

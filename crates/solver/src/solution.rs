@@ -9,6 +9,10 @@ pub enum Status {
     BudgetBinding,
     /// The iteration limit was reached; `dwell` is the best feasible point found.
     IterationLimit,
+    /// The solve ended, but its optimality certificate (the KKT residual) is above
+    /// [`crate::CERTIFY_TOL`]: `dwell` is feasible but not proven optimal. Rounding on badly scaled
+    /// data is the usual cause.
+    Uncertified,
 }
 
 impl Status {
@@ -18,6 +22,7 @@ impl Status {
             Status::Optimal => "optimal",
             Status::BudgetBinding => "budget_binding",
             Status::IterationLimit => "iteration_limit",
+            Status::Uncertified => "uncertified",
         }
     }
 }

@@ -258,7 +258,12 @@ impl DwellSolver {
         if !converged {
             status = Status::IterationLimit;
         }
-        Ok(self.solution(spec, status, it, predictions))
+        let mut sol = self.solution(spec, status, it, predictions);
+        // Never call a point optimal that its own certificate does not prove.
+        if !(sol.kkt_residual <= crate::CERTIFY_TOL) && sol.status != Status::IterationLimit {
+            sol.status = Status::Uncertified;
+        }
+        Ok(sol)
     }
 
     /// Brings the cached classification, Gram matrix and b in line with `spec` by diffing against the last one.

@@ -112,6 +112,33 @@ proptest! {
         // (x and even A·x need not be unique with bands, so only the objective and KKT are compared.)
     }
 
+    /// Regression (hostile-input run, case 7): far-scaled data used to come back "optimal" with a
+    /// wrong answer. Now, anywhere in 10^±95 it is either refused as out of range or, when the
+    /// status says optimal, the certificate recomputed from scratch ([`kkt::check`]) proves it.
+    #[test]
+    fn extreme_scales_are_certified_or_refused(c in case(false), k in -95i32..=95, l in -95i32..=95) {
+        let (m, n) = (c.rates.cells(), c.rates.configs());
+        let (sa, sy) = (10f64.powi(k), 10f64.powi(l));
+        let data: Vec<f64> = (0..m).flat_map(|r| (0..n).map(move |j| (r, j))).map(|(r, j)| c.rates.get(r, j) * sa).collect();
+        let mut spec = c.spec.clone();
+        spec.lo.iter_mut().for_each(|v| *v *= sy);
+        spec.hi.iter_mut().for_each(|v| *v *= sy);
+        let Ok(rates) = Rates::from_row_major(m, n, &data) else {
+            return Ok(());
+        };
+        let sol = match DwellSolver::new(rates.clone()).solve(&spec) {
+            Ok(sol) => sol,
+            Err(traycast_solver::InputError::Magnitude { .. }) => return Ok(()),
+            Err(e) => return Err(TestCaseError::fail(format!("{e}"))),
+        };
+        prop_assert!(sol.dwell.iter().all(|v| v.is_finite()));
+        if matches!(sol.status, Status::Optimal | Status::BudgetBinding) {
+            prop_assert!(sol.kkt_residual <= traycast_solver::CERTIFY_TOL);
+            let k = kkt::check(&rates, &spec, &sol.dwell);
+            prop_assert!(k.stationarity < 1e-6, "claimed {:?} but {k:?}", sol.status);
+        }
+    }
+
     #[test]
     fn permuting_columns_permutes_the_answer(c in case(true), rot in 0usize..8) {
         let (m, n) = (c.rates.cells(), c.rates.configs());

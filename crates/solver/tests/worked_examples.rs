@@ -128,3 +128,43 @@ fn bad_input_is_a_typed_error() {
         })
     ));
 }
+
+/// Regression (hostile-input run, case 7): rates or targets near 1e±300 used to come back
+/// "optimal" at x = 0 (norms overflowed) or with a KKT residual of 1.6e11. They are refused, naming
+/// the value, before any arithmetic.
+#[test]
+fn values_near_the_float_limits_are_refused() {
+    use traycast_solver::{DwellSolver, Field, InputError, Rates, Spec};
+    for v in [1e-300, 1e300] {
+        let err = Rates::from_row_major(2, 2, &[v, 2.0 * v, 3.0 * v, v]).unwrap_err();
+        assert!(
+            matches!(
+                err,
+                InputError::Magnitude {
+                    field: Field::Rates,
+                    index: Some(0),
+                    config: Some(0),
+                    ..
+                }
+            ),
+            "{err:?}"
+        );
+        let rates = Rates::from_row_major(2, 2, &[1.0, 2.0, 3.0, 1.0]).unwrap();
+        let err = DwellSolver::new(rates)
+            .solve(&Spec::point(&[v, 2.0 * v], 2))
+            .unwrap_err();
+        assert!(
+            matches!(
+                err,
+                InputError::Magnitude {
+                    field: Field::Lower,
+                    ..
+                }
+            ),
+            "{err:?}"
+        );
+    }
+    // The size cap comes before any allocation.
+    let err = Rates::from_row_major(3, 16_000, &[]).unwrap_err();
+    assert!(matches!(err, InputError::TooLarge { .. }), "{err:?}");
+}
