@@ -6,6 +6,7 @@ use crate::field::{self, Absorber};
 use crate::library::{MapLibrary, RateBasis, Window};
 use crate::model::{MapSource, Plan, Sequencing};
 use traycast_solver::{DwellSolver, Rates, Spec, Status};
+use traycast_thermal::ThermalError;
 use traycast_thermal::composition::LATENT_VAPORISATION;
 use traycast_thermal::material::Material;
 use traycast_thermal::safety::{self, Verdict};
@@ -673,7 +674,7 @@ impl Evaluator {
         };
         let error_linear = err(&linear);
         let error_simulated = err(&course.after_standing);
-        let mut warnings = Vec::new();
+        let mut warnings = course_warnings(plan, &course);
         let cap_excess = (0..n)
             .filter_map(|i| {
                 plan.zone_at(i)
@@ -925,7 +926,51 @@ pub fn time_course(
         configs: maps.configs,
         rates: &maps.thawed,
     };
-    Ok(simulate::simulate(&load, &sim_maps, schedule, settings)?)
+    simulate::simulate(&load, &sim_maps, schedule, settings).map_err(|e| match e {
+        ThermalError::Diverged { cell, time_s } => PlanError::new(
+            format!(
+                "simulation, cell row {}, col {}",
+                cell / plan.tray.width,
+                cell % plan.tray.width
+            ),
+            format!(
+                "the temperature of '{}' stopped being a number at {time_s:.1} s: the plan drives the food past what the model covers; reduce the power, the time or the thickness",
+                plan.item_at(cell)
+                    .map_or("an empty cell", |k| plan.items[k].name.as_str())
+            ),
+        ),
+        other => other.into(),
+    })
+}
+
+/// Warnings about cells the time course drove outside the model: boiled dry, or past
+/// [`simulate::MODEL_LIMIT_C`] (dried food scorching). One line per item.
+fn course_warnings(plan: &Plan, course: &TimeCourse) -> Vec<String> {
+    let mut out = Vec::new();
+    for (k, item) in plan.items.iter().enumerate() {
+        let cells: Vec<usize> = (0..course.peak.len())
+            .filter(|&i| plan.item_at(i) == Some(k))
+            .collect();
+        let dry = cells.iter().filter(|&&i| course.boiled_dry[i]).count();
+        if dry > 0 {
+            out.push(format!(
+                "{dry} cell(s) of '{}' boiled dry: all their water evaporated and nothing is left there; shorten the heating or lower the power",
+                item.name
+            ));
+        }
+        let hottest = cells
+            .iter()
+            .map(|&i| course.peak[i])
+            .fold(f64::NEG_INFINITY, f64::max);
+        if hottest > simulate::MODEL_LIMIT_C {
+            out.push(format!(
+                "'{}' reaches {hottest:.0} °C: it has dried out and would scorch; above {:.0} °C the food property model no longer holds and the predictions are not physical",
+                item.name,
+                simulate::MODEL_LIMIT_C
+            ));
+        }
+    }
+    out
 }
 
 /// Per-cell 95 % bounds after standing from the rates' standard errors.

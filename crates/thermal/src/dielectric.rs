@@ -7,6 +7,15 @@
 //! 25 °C (Pace, Westphal & Goldblith 1968 — typical values recalled from memory, unconfirmed).
 //! Frozen vegetables have no measured value in those sources; we assume the beef ratio (about 1/16).
 
+/// Loss factor ε″ of a food's dry residue once its water has evaporated, at 2.45 GHz.
+///
+/// An assumption: dried food solids are low-loss dielectrics, taken at the value Datta & Ramaswamy
+/// (2001) give for solid milk fat at 2.45 GHz (ε′ 2.6, ε″ 0.2; shared/reference/physics.md §3.3),
+/// the same order as the fats-and-oils value (ε″ ≈ 0.15). No measured value for dried mixed food
+/// solids was found; the point is that a dried cell absorbs one to two orders of magnitude less
+/// than the moist food, not the exact figure.
+pub const DRY_RESIDUE_LOSS: f64 = 0.2;
+
 /// How a food absorbs microwave power.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub enum LossClass {
@@ -80,6 +89,15 @@ impl LossClass {
     pub fn absorption_ratio(self, unfrozen: f64) -> f64 {
         let f = self.factors();
         (f.frozen + (f.thawed - f.frozen) * unfrozen.clamp(0.0, 1.0)) / f.thawed
+    }
+
+    /// Absorption of the dry residue a cell of this class leaves once all its water has boiled
+    /// off, relative to the thawed food, for a food with `solids` mass fraction of dry matter: the
+    /// residue's loss factor ([`DRY_RESIDUE_LOSS`], never above the class's own) over the thawed
+    /// one, times the share of the original material that remains.
+    pub fn dry_ratio(self, solids: f64) -> f64 {
+        let f = self.factors();
+        DRY_RESIDUE_LOSS.min(f.thawed) / f.thawed * solids.clamp(0.0, 1.0)
     }
 
     /// Short lower-case name, used in files.

@@ -42,6 +42,13 @@ pub enum ThermalError {
         /// How many configurations there are.
         configs: usize,
     },
+    /// The simulation reached a state that is not a finite number (a model limit was passed).
+    Diverged {
+        /// Cell index (row-major).
+        cell: usize,
+        /// Simulated time when it happened, s.
+        time_s: f64,
+    },
     /// Two inputs disagree in size.
     Dimension {
         /// What has the wrong size.
@@ -85,6 +92,10 @@ impl fmt::Display for ThermalError {
                 expected,
                 found,
             } => write!(f, "{what} has {found} entries, expected {expected}"),
+            ThermalError::Diverged { cell, time_s } => write!(
+                f,
+                "cell {cell}: the simulated temperature stopped being a number at {time_s:.1} s; the plan drives the food past what the model covers (reduce the power, the time or the thickness)"
+            ),
         }
     }
 }

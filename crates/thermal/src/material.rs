@@ -28,6 +28,9 @@ pub struct Material {
     pub water: f64,
     /// Smallest dH/dT over the table (kJ/(kg·K)): sets the explicit time-step limit.
     pub min_heat_capacity: f64,
+    /// Absorption of the dry residue left when all the water has boiled off, relative to the
+    /// thawed food ([`LossClass::dry_ratio`]); 0 for pure water, which leaves nothing.
+    pub dry_absorption: f64,
     /// Enthalpy at the boiling point (kJ/kg); +∞ for materials that do not boil.
     boil_h: f64,
 }
@@ -175,6 +178,7 @@ impl Material {
             reference_cp: thawed.specific_heat,
             water: comp.water,
             min_heat_capacity,
+            dry_absorption: loss.dry_ratio(solids),
             boil_h: f64::INFINITY,
         };
         m.boil_h = m.enthalpy(BOILING_POINT);
@@ -202,6 +206,7 @@ impl Material {
             reference_cp: cp,
             water: 0.0,
             min_heat_capacity: cp,
+            dry_absorption: 1.0,
             boil_h: f64::INFINITY,
         })
     }
@@ -285,6 +290,18 @@ impl Material {
     /// Temperature at enthalpy `h`.
     pub fn temperature(&self, h: f64) -> f64 {
         self.state(h, &mut 0).0
+    }
+
+    /// Absorption factor for the moisture a cell has left: 1 with all its water, falling linearly
+    /// (in the water that remains) to [`Material::dry_absorption`] when it has all boiled off. An
+    /// assumption of this model: the loss is carried by the water, the dry matter adds its own small
+    /// share. Materials without water are unaffected.
+    pub fn moisture_factor(&self, water_left_fraction: f64) -> f64 {
+        if self.water <= 0.0 {
+            return 1.0;
+        }
+        let w = water_left_fraction.clamp(0.0, 1.0);
+        self.dry_absorption + (1.0 - self.dry_absorption) * w
     }
 
     /// Enthalpy at the boiling point: above it, energy evaporates water.

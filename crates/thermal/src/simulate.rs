@@ -9,6 +9,13 @@
 //! - **Boiling.** Above 100 °C the excess evaporates water at L_v = 2257 kJ/kg; the cell stays at
 //!   100 °C until its water is gone. The thermal curve keeps the original composition (moisture loss
 //!   of a few per cent changes it little) — a stated simplification.
+//! - **Drying.** Absorption falls with the water that has boiled off, down to the dry residue's own
+//!   small share ([`Material::moisture_factor`]), so a dried cell no longer heats as if it were
+//!   moist. A cell with no dry matter (pure water) that boils away entirely is *boiled dry*: it holds
+//!   at the boiling point and takes no further part ([`TimeCourse::boiled_dry`]). Cells that pass
+//!   [`MODEL_LIMIT_C`] are outside the property model and scorch; callers warn about them.
+//! - **Finite.** A state that stops being a finite number is an error naming the cell and the time,
+//!   never a result.
 //! - **Conduction.** Between side-by-side cells: contact area = cell size × the thinner thickness;
 //!   half-cell resistances Δx/(2k) on each side, plus 1/h_c between different food items.
 //! - **Surface loss.** The top face loses h·(T − T_air) (h ≈ 10 W/(m²·K): air nearly still, an
@@ -20,10 +27,15 @@
 //! the lumped form of α·Δt/Δx² ≤ 1/4 in 2-D. [`simulate`] splits each requested step into as many
 //! equal sub-steps as needed to stay under 0.9× that limit.
 
-use crate::composition::LATENT_VAPORISATION;
+use crate::composition::{BOILING_POINT, LATENT_VAPORISATION};
 use crate::error::{ThermalError, in_range};
 use crate::material::Material;
 use crate::schedule::Schedule;
+
+/// Highest temperature the property model covers, °C: the top of the Choi & Okos (1986)
+/// correlations' stated range (−40 to 150 °C; ASHRAE Handbook – Refrigeration 2006, ch. 9). A dried
+/// cell past it is scorching, and its predicted temperature is outside the model.
+pub const MODEL_LIMIT_C: f64 = 150.0;
 
 /// The tray grid.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -165,6 +177,8 @@ pub struct TimeCourse {
     pub moisture_loss: Vec<f64>,
     /// Water evaporated per item, kg.
     pub item_moisture_loss: Vec<f64>,
+    /// Cells whose whole content evaporated (pure water boiled away): held at the boiling point.
+    pub boiled_dry: Vec<bool>,
     /// Time step actually used, s.
     pub step: f64,
     /// Heating time, s.
@@ -191,6 +205,9 @@ struct Model<'a> {
     energy: Vec<f64>,
     water_left: Vec<f64>,
     evaporated: Vec<f64>,
+    /// Filled cells still taking part (not boiled dry), the subset of `filled` the physics loops use.
+    live: Vec<usize>,
+    boiled_dry: Vec<bool>,
     temp: Vec<f64>,
     k: Vec<f64>,
     absorb: Vec<f64>,
@@ -387,12 +404,14 @@ impl<'a> Model<'a> {
         let mut m = Model {
             load,
             settings,
-            filled,
+            filled: filled.clone(),
             mass: mass0.clone(),
             mass0,
             energy,
             water_left,
             evaporated: vec![0.0; n],
+            live: filled.clone(),
+            boiled_dry: vec![false; n],
             temp: vec![f64::NAN; n],
             k: vec![0.0; n],
             absorb: vec![0.0; n],
@@ -420,26 +439,51 @@ impl<'a> Model<'a> {
     }
 
     fn update_state(&mut self) {
-        for idx in 0..self.filled.len() {
-            let i = self.filled[idx];
-            let mat = &self.load.items[self.item[i]];
-            let (t, k, a) = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
-            self.temp[i] = t;
-            self.k[i] = k;
-            self.absorb[i] = a;
+        for idx in 0..self.live.len() {
+            let i = self.live[idx];
+            self.set_state(i);
         }
+    }
+
+    /// Temperature, conductivity and absorption of cell `i` from its energy, mass and moisture.
+    fn set_state(&mut self, i: usize) {
+        let mat = &self.load.items[self.item[i]];
+        let (t, k, a) = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
+        let water0 = mat.water * self.mass0[i];
+        let moisture = if water0 > 0.0 {
+            self.water_left[i] / water0
+        } else {
+            1.0
+        };
+        self.temp[i] = t;
+        self.k[i] = k;
+        self.absorb[i] = a * mat.moisture_factor(moisture);
+    }
+
+    /// Takes cell `i` out of the physics once nothing is left of it: it holds at the boiling point,
+    /// absorbs nothing and exchanges no heat.
+    fn dry_out(&mut self, i: usize) {
+        self.boiled_dry[i] = true;
+        self.temp[i] = BOILING_POINT;
+        self.k[i] = 0.0;
+        self.absorb[i] = 0.0;
+        self.live.retain(|&j| j != i);
     }
 
     /// Conductance of every pair with the current conductivities, and each cell's sum of them.
     fn conductances(&mut self) {
         let dx = self.load.tray.cell_size;
         let top = self.settings.surface_h * dx * dx;
-        for &i in &self.filled {
+        for &i in &self.live {
             self.gsum[i] = top + self.k[i] * self.edge_area[i] / dx;
             // Half-cell resistance per area, Δx/(2k).
             self.half_r[i] = dx / (2.0 * self.k[i]);
         }
         for (p, g) in self.pairs.iter().zip(self.cond.iter_mut()) {
+            if self.boiled_dry[p.a] || self.boiled_dry[p.b] {
+                *g = 0.0;
+                continue;
+            }
             *g = p.area / (self.half_r[p.a] + self.half_r[p.b] + p.contact);
             self.gsum[p.a] += *g;
             self.gsum[p.b] += *g;
@@ -449,7 +493,7 @@ impl<'a> Model<'a> {
     /// Largest stable step, min over cells of C/ΣG, with the conductances from [`Self::conductances`].
     fn stable_step(&self) -> f64 {
         let mut best = f64::INFINITY;
-        for &i in &self.filled {
+        for &i in &self.live {
             if self.gsum[i] > 0.0 {
                 best = best.min(self.mass[i] * self.capacity[i] / self.gsum[i]);
             }
@@ -459,7 +503,7 @@ impl<'a> Model<'a> {
 
     /// True when a step of `dt` is within 0.9 of every cell's limit (multiplications only).
     fn stable_for(&self, dt: f64) -> bool {
-        self.filled
+        self.live
             .iter()
             .all(|&i| dt * self.gsum[i] <= 0.9 * self.mass[i] * self.capacity[i])
     }
@@ -494,8 +538,9 @@ impl<'a> Model<'a> {
             self.flux[p.b] -= q;
         }
         let top = self.settings.surface_h * dx * dx;
-        for idx in 0..self.filled.len() {
-            let i = self.filled[idx];
+        let mut dried = false;
+        for idx in 0..self.live.len() {
+            let i = self.live[idx];
             let mat = &self.load.items[self.item[i]];
             let mut q = self.flux[i] - top * (self.temp[i] - self.settings.air);
             if self.edge_area[i] > 0.0 {
@@ -518,12 +563,35 @@ impl<'a> Model<'a> {
                 self.mass[i] -= d;
                 self.water_left[i] -= d;
                 self.evaporated[i] += d;
+                // Nothing left but a trace (pure water boiled away): the cell is gone.
+                if self.mass[i] <= 1e-9 * self.mass0[i] {
+                    self.mass[i] = 0.0;
+                    self.energy[i] = 0.0;
+                    dried = true;
+                    continue;
+                }
             }
-            let (t, k, a) = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
-            self.temp[i] = t;
-            self.k[i] = k;
-            self.absorb[i] = a;
+            self.set_state(i);
         }
+        if dried {
+            let gone: Vec<usize> = self
+                .live
+                .iter()
+                .copied()
+                .filter(|&i| self.mass[i] == 0.0)
+                .collect();
+            for i in gone {
+                self.dry_out(i);
+            }
+        }
+    }
+
+    /// The first filled cell whose temperature is not a finite number, if any.
+    fn non_finite(&self) -> Option<usize> {
+        self.filled
+            .iter()
+            .copied()
+            .find(|&i| !self.temp[i].is_finite())
     }
 }
 
@@ -548,6 +616,13 @@ impl Recorder {
             hi[it] = hi[it].max(m.temp[i]);
             sum[it] += m.temp[i] * m.mass[i];
             mass[it] += m.mass[i];
+        }
+        // An item whose every cell boiled dry has no mass left: its mean is the boiling point.
+        for it in 0..k {
+            if mass[it] == 0.0 && lo[it].is_finite() {
+                sum[it] = BOILING_POINT;
+                mass[it] = 1.0;
+            }
         }
         for (it, curve) in self.items.iter_mut().enumerate() {
             let empty = mass[it] == 0.0;
@@ -595,15 +670,20 @@ pub fn simulate(
                    duration: f64,
                    config: Option<usize>,
                    now: &mut f64,
-                   rec: &mut Recorder| {
+                   rec: &mut Recorder|
+     -> Result<(), ThermalError> {
         let mut left = duration;
         while left > 1e-12 {
             let dt = settings.step.min(left);
             used_step = used_step.min(model.advance(dt, config, maps));
             left -= dt;
             *now += dt;
+            if let Some(cell) = model.non_finite() {
+                return Err(ThermalError::Diverged { cell, time_s: *now });
+            }
             rec.track(*now, model, settings.record_every);
         }
+        Ok(())
     };
     for step in &schedule.steps {
         run(
@@ -612,14 +692,14 @@ pub fn simulate(
             Some(step.config),
             &mut now,
             &mut rec,
-        );
+        )?;
     }
     let end_of_heating = model.temp.clone();
     let heating_seconds = now;
     if rec.times.last() != Some(&now) {
         rec.record(now, &model);
     }
-    run(&mut model, settings.standing, None, &mut now, &mut rec);
+    run(&mut model, settings.standing, None, &mut now, &mut rec)?;
     if rec.times.last() != Some(&now) {
         rec.record(now, &model);
     }
@@ -636,6 +716,7 @@ pub fn simulate(
         after_standing: model.temp.clone(),
         moisture_loss: model.evaporated.clone(),
         item_moisture_loss,
+        boiled_dry: model.boiled_dry.clone(),
         step: used_step,
         heating_seconds,
         standing_seconds: settings.standing,
