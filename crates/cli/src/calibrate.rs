@@ -2,7 +2,7 @@
 //! quality report on stdout.
 
 use crate::error::CliError;
-use crate::plans::{in_file, load_plan, read, write};
+use crate::plans::{in_file, load_plan, read_at_most, write};
 use crate::progress::Progress;
 use std::path::{Path, PathBuf};
 use traycast_plan::calibrate::{self, Settings};
@@ -36,7 +36,7 @@ pub struct Args {
 /// Runs the command.
 pub fn run(args: &Args) -> Result<(), CliError> {
     let layout = load_plan(&args.layout)?;
-    let text = read(&args.runs)?;
+    let text = read_at_most(&args.runs, traycast_plan::runs::MAX_RUNS_BYTES)?;
     let _progress = Progress::after_a_second("calibrating");
     let runs = HeatingRuns::parse(
         &text,

@@ -41,10 +41,14 @@ pub struct Args {
     /// Output: `lines` (one dwell per line) or `json`.
     #[arg(long, value_enum, default_value_t = Format::Lines)]
     format: Format,
-    /// Solve N times from cold and report the median time (JSON field solve_seconds_median).
-    #[arg(long, value_name = "N")]
-    repeat: Option<usize>,
+    /// Solve N times from cold and report the median time (JSON field solve_seconds_median);
+    /// 1 to 100 000.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=MAX_REPEAT))]
+    repeat: Option<u32>,
 }
+
+/// Most solves `--repeat` runs.
+const MAX_REPEAT: i64 = 100_000;
 
 /// Output format.
 #[derive(Clone, Copy, clap::ValueEnum)]
@@ -99,8 +103,8 @@ pub fn run(args: &Args) -> Result<(), CliError> {
 
     let (solution, median) = match args.repeat {
         None => (solve(&rates, &spec, args)?, None),
-        Some(0) => return Err(CliError("--repeat must be at least 1".into())),
         Some(k) => {
+            let k = k as usize;
             let mut times = Vec::with_capacity(k);
             let mut last = None;
             for _ in 0..k {
@@ -179,6 +183,28 @@ fn locate(args: &Args, e: InputError) -> CliError {
                 .unwrap_or(&args.rates);
             CliError::at(file, cell + 1, 0, &e)
         }
+        InputError::Magnitude {
+            field: Field::Rates,
+            index: Some(i),
+            config: Some(j),
+            ..
+        } => CliError::at(&args.rates, i + 1, j + 1, &e),
+        InputError::Magnitude {
+            field,
+            index: Some(i),
+            ..
+        } => match vector_file(*field) {
+            Some(f) => CliError::at(f, i + 1, 0, &e),
+            None => CliError(e.to_string()),
+        },
+        InputError::Magnitude {
+            field: Field::Budget,
+            ..
+        } => CliError(format!("--budget: {e}")),
+        InputError::Magnitude {
+            field: Field::TimePenalty,
+            ..
+        } => CliError(format!("--time-penalty: {e}")),
         InputError::NonPositiveWeight { cell, .. } => match &args.weights {
             Some(w) => CliError::at(w, cell + 1, 0, &e),
             None => CliError(e.to_string()),

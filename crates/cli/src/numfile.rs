@@ -2,6 +2,7 @@
 
 use crate::error::CliError;
 use std::path::Path;
+use traycast_solver::{MAX_CELLS, MAX_CONFIGS};
 
 /// What a number in a file may be.
 #[derive(Clone, Copy)]
@@ -12,10 +13,15 @@ pub enum Allow {
     Infinite,
 }
 
-/// Reads `path` as rows of comma-separated numbers; every row must have the same length.
+/// Longest numeric file read, bytes.
+pub const MAX_BYTES: usize = 64 << 20;
+
+/// Reads `path` as rows of comma-separated numbers; every row must have the same length. At most
+/// [`MAX_CELLS`] rows of [`MAX_CONFIGS`] numbers: the solver's limits, checked while reading so a
+/// hostile file never makes the matrix.
 pub fn read_matrix(path: &Path, allow: Allow) -> Result<(usize, Vec<f64>), CliError> {
-    let text = std::fs::read_to_string(path)
-        .map_err(|e| CliError::at(path, 0, 0, format!("cannot read: {e}")))?;
+    let text = crate::plans::read_at_most(path, MAX_BYTES)?;
+    let mut rows = 0usize;
     let mut reader = csv::ReaderBuilder::new()
         .has_headers(false)
         .flexible(true)
@@ -31,6 +37,26 @@ pub fn read_matrix(path: &Path, allow: Allow) -> Result<(usize, Vec<f64>), CliEr
         let line = record.position().map_or(0, |p| p.line() as usize);
         if record.iter().all(|f| f.is_empty()) {
             continue;
+        }
+        rows += 1;
+        if record.len() > MAX_CONFIGS {
+            return Err(CliError::at(
+                path,
+                line,
+                0,
+                format!(
+                    "has {} values; at most {MAX_CONFIGS} (configurations) are allowed",
+                    record.len()
+                ),
+            ));
+        }
+        if rows > MAX_CELLS {
+            return Err(CliError::at(
+                path,
+                line,
+                0,
+                format!("more than {MAX_CELLS} lines (cells) are not allowed"),
+            ));
         }
         match width {
             None => width = Some(record.len()),

@@ -9,8 +9,37 @@ use traycast_plan::library::MapLibrary;
 use traycast_plan::model::Plan;
 use traycast_plan::{PlanError, demos, wire};
 
-pub fn read(path: &Path) -> Result<String, CliError> {
+/// Reads a text file of at most `max` bytes; a longer one is refused before it is read.
+pub fn read_at_most(path: &Path, max: usize) -> Result<String, CliError> {
+    let len = std::fs::metadata(path)
+        .map_err(|e| CliError::at(path, 0, 0, format!("cannot read: {e}")))?
+        .len();
+    if len > max as u64 {
+        return Err(CliError::at(
+            path,
+            0,
+            0,
+            format!(
+                "is {len} bytes; files of this kind may be at most {max} bytes ({} MiB)",
+                max >> 20
+            ),
+        ));
+    }
     std::fs::read_to_string(path).map_err(|e| CliError::at(path, 0, 0, format!("cannot read: {e}")))
+}
+
+/// Reads a plan or library file (at most [`library::MAX_LIBRARY_BYTES`]).
+pub fn read(path: &Path) -> Result<String, CliError> {
+    read_at_most(path, traycast_plan::library::MAX_LIBRARY_BYTES)
+}
+
+/// A number for the text tables: one decimal, or "—" where there is no value (never NaN or inf).
+fn num(v: f64) -> String {
+    if v.is_finite() {
+        format!("{v:.1}")
+    } else {
+        "—".into()
+    }
 }
 
 pub fn write(path: &Path, text: &str) -> Result<(), CliError> {
@@ -145,13 +174,13 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
         let v = &r.verdict;
         let _ = writeln!(
             s,
-            "{:<28} {:>7.1} {:>7.1} {:>7.1}  {:<8} {:>8.1}  {}{}",
+            "{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  {}{}",
             it.name,
-            r.min,
-            r.mean,
-            r.max,
+            num(r.min),
+            num(r.mean),
+            num(r.max),
             if v.safe { "meets" } else { "FAILS" },
-            v.margin,
+            num(v.margin),
             v.binding.source,
             if v.short_stand {
                 " (standing shorter than the rule assumes)"
@@ -241,10 +270,20 @@ pub fn simulate(
             } else {
                 it.name.clone()
             };
+            // An item with no cells has no temperature: an empty field, never NaN.
+            let cell = |v: f64| {
+                if v.is_finite() {
+                    format!("{v:.2}")
+                } else {
+                    String::new()
+                }
+            };
             let _ = writeln!(
                 out,
-                "{time:.1},{name},{:.2},{:.2},{:.2}",
-                c.min[t], c.mean[t], c.max[t]
+                "{time:.1},{name},{},{},{}",
+                cell(c.min[t]),
+                cell(c.mean[t]),
+                cell(c.max[t])
             );
         }
     }

@@ -21,6 +21,21 @@ impl PlanError {
     }
 }
 
+/// Refuses a text longer than `max` bytes before anything is parsed from it.
+pub(crate) fn check_length(what: &str, text: &str, max: usize) -> Result<(), PlanError> {
+    if text.len() > max {
+        return Err(PlanError::new(
+            "file",
+            format!(
+                "is {} bytes; a {what} may be at most {max} bytes ({} MiB)",
+                text.len(),
+                max >> 20
+            ),
+        ));
+    }
+    Ok(())
+}
+
 impl fmt::Display for PlanError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(f, "{}: {}", self.place, self.message)

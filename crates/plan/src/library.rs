@@ -93,6 +93,46 @@ pub struct MapLibrary {
     pub loads: Vec<RecordedLoad>,
 }
 
+/// Most rate values (loads × cells × configurations) one library may hold: 8 Mi values, about
+/// 150 MiB with their standard errors and fill flags (one full 128 × 128 × 512 load, or 57 loads
+/// of 48 × 32 × 96).
+pub const MAX_LIBRARY_VALUES: usize = 8 << 20;
+
+/// Longest library text read, bytes: bounds what parsing the JSON form can allocate.
+pub const MAX_LIBRARY_BYTES: usize = 64 << 20;
+
+/// Checks a library's tray and configuration count against the plan limits, before allocating.
+fn check_shape(place: &str, width: usize, height: usize, configs: usize) -> Result<(), PlanError> {
+    use crate::model::{MAX_CONFIGS, MAX_SIDE};
+    if !(1..=MAX_SIDE).contains(&width) || !(1..=MAX_SIDE).contains(&height) {
+        return Err(PlanError::new(
+            place,
+            format!("tray {width} × {height} is not allowed: 1 to {MAX_SIDE} cells a side"),
+        ));
+    }
+    if !(1..=MAX_CONFIGS).contains(&configs) {
+        return Err(PlanError::new(
+            place,
+            format!("{configs} configurations is not allowed: 1 to {MAX_CONFIGS}"),
+        ));
+    }
+    Ok(())
+}
+
+/// Checks that `loads` loads of `cells` × `configs` stay within [`MAX_LIBRARY_VALUES`].
+fn check_values(loads: usize, cells: usize, configs: usize) -> Result<(), PlanError> {
+    let values = loads.saturating_mul(cells).saturating_mul(configs);
+    if values > MAX_LIBRARY_VALUES {
+        return Err(PlanError::new(
+            "library",
+            format!(
+                "{loads} loads of {cells} cells × {configs} configurations is {values} rates; a library holds at most {MAX_LIBRARY_VALUES}: split it"
+            ),
+        ));
+    }
+    Ok(())
+}
+
 /// Above this median rate (K/s over food cells) a file is probably not in K/s.
 pub const IMPLAUSIBLY_FAST: f64 = 10.0;
 /// Below this median rate (K/s) a file is probably not in K/s either.
@@ -192,19 +232,9 @@ impl MapLibrary {
 
     /// Structural and plausibility checks; the error names the load, configuration and cell.
     pub fn validate(&self) -> Result<(), PlanError> {
+        check_shape("library", self.width, self.height, self.configs)?;
         let n = self.width * self.height;
-        if n == 0 || self.width > crate::model::MAX_SIDE || self.height > crate::model::MAX_SIDE {
-            return Err(PlanError::new(
-                "library",
-                format!("tray {} × {} is not allowed", self.width, self.height),
-            ));
-        }
-        if self.configs == 0 || self.configs > crate::model::MAX_CONFIGS {
-            return Err(PlanError::new(
-                "library",
-                format!("{} configurations is not allowed", self.configs),
-            ));
-        }
+        check_values(self.loads.len(), n, self.configs)?;
         if !(self.cell_mm.is_finite() && self.cell_mm > 0.0) {
             return Err(PlanError::new(
                 "library",
@@ -289,6 +319,7 @@ impl MapLibrary {
 
     /// Parses either form, telling them apart by content (JSON starts with `{`).
     pub fn parse(text: &str) -> Result<Self, PlanError> {
+        crate::error::check_length("map library", text, MAX_LIBRARY_BYTES)?;
         if text.trim_start().starts_with('{') {
             Self::from_json(text)
         } else {
@@ -298,6 +329,7 @@ impl MapLibrary {
 
     /// Parses the CSV format (see the module docs). Errors name the line.
     pub fn from_csv(text: &str) -> Result<Self, PlanError> {
+        crate::error::check_length("map library", text, MAX_LIBRARY_BYTES)?;
         let sheet = Sheet::parse(text)?;
         sheet.check_format("traycast-maps", "1")?;
         let name = sheet
@@ -360,16 +392,7 @@ impl MapLibrary {
             size.ok_or_else(|| head("missing '# tray: W x H cells of S mm'"))?;
         let configs = configs.ok_or_else(|| head("missing '# configurations: N'"))?;
         let factor = factor.ok_or_else(|| head("missing '# units: K/s' (or K/min, degF/s)"))?;
-        if width == 0
-            || height == 0
-            || width > crate::model::MAX_SIDE
-            || height > crate::model::MAX_SIDE
-        {
-            return Err(head("tray size out of range"));
-        }
-        if configs == 0 || configs > crate::model::MAX_CONFIGS {
-            return Err(head("configurations out of range"));
-        }
+        check_shape("header", width, height, configs)?;
         let n = width * height;
         let want = ["load", "config", "row", "col", "class", "rate"];
         let with_se = [&want[..], &["rate_se", "filled"]].concat();
@@ -386,8 +409,9 @@ impl MapLibrary {
         }
         let mut loads: Vec<RecordedLoad> = Vec::new();
         let mut seen: Vec<Vec<bool>> = Vec::new();
-        for (lineno, rec) in &sheet.records {
-            let at = |m: String| at_line(*lineno, m);
+        for record in sheet.records() {
+            let (lineno, rec) = record?;
+            let at = |m: String| at_line(lineno, m);
             if rec.len() != columns.len() {
                 return Err(at(format!(
                     "has {} fields, expected {}",
@@ -430,7 +454,7 @@ impl MapLibrary {
                 if se < 0.0 {
                     return Err(at(format!("rate_se {se} is negative")));
                 }
-                let filled = match rec[7].as_str() {
+                let filled = match &rec[7] {
                     "0" | "no" | "false" => false,
                     "1" | "yes" | "true" => true,
                     other => return Err(at(format!("filled '{other}' should be 0 or 1"))),
@@ -442,6 +466,7 @@ impl MapLibrary {
             let li = match loads.iter().position(|l| l.name == rec[0]) {
                 Some(k) => k,
                 None => {
+                    check_values(loads.len() + 1, n, configs).map_err(|e| at(e.message))?;
                     loads.push(RecordedLoad {
                         name: rec[0].to_string(),
                         layout: vec![None; n],
@@ -610,6 +635,7 @@ impl MapLibrary {
 
     /// Parses the JSON form.
     pub fn from_json(text: &str) -> Result<Self, PlanError> {
+        crate::error::check_length("map library", text, MAX_LIBRARY_BYTES)?;
         let doc: LibraryDoc = serde_json::from_str(text)
             .map_err(|e| PlanError::new(format!("line {}", e.line()), e.to_string()))?;
         if doc.format != FORMAT || doc.version != 1 {
@@ -630,7 +656,10 @@ impl MapLibrary {
                 format!("'{}' is not as-loaded or thawed", doc.basis),
             )
         })?;
+        // Sizes first: nothing is allocated for a tray the library may not have.
+        check_shape("library", doc.width, doc.height, doc.configs)?;
         let n = doc.width * doc.height;
+        check_values(doc.loads.len(), n, doc.configs)?;
         let mut loads = Vec::new();
         for l in doc.loads {
             let mut layout = Vec::with_capacity(n);

@@ -93,6 +93,29 @@ pub struct HeatingRuns {
     pub ignored: usize,
 }
 
+/// Most readings one runs file may hold: about 120 MiB of readings in memory. A 48 × 32 thermal
+/// camera at one frame a second for 96 configurations of 20 s is 3 M readings.
+pub const MAX_READINGS: usize = 5_000_000;
+/// Longest runs file read, bytes (about 30 bytes a reading).
+pub const MAX_RUNS_BYTES: usize = 160 << 20;
+/// Latest reading time, s (one day): later times are a unit slip, not a heating run.
+pub const MAX_TIME_S: f64 = 86_400.0;
+
+/// The cell (0 … `cells` − 1) under a position `mm` from the tray's edge, with cells `pitch` mm
+/// wide. A position within a billionth of a cell of a boundary is on it, and a boundary belongs
+/// to the cell it starts, however `mm / pitch` rounds (69.3 / 9.9 is 6.999…); a position within
+/// rounding of the far edge stays in the last cell.
+fn cell_under(mm: f64, pitch: f64, cells: usize) -> usize {
+    let q = mm / pitch;
+    let nearest = q.round();
+    let k = if (q - nearest).abs() < 1e-9 {
+        nearest
+    } else {
+        q.floor()
+    };
+    (k.max(0.0) as usize).min(cells - 1)
+}
+
 /// Where a reading is.
 #[derive(Clone, Copy, PartialEq, Eq, Hash)]
 enum PositionKey {
@@ -104,6 +127,7 @@ impl HeatingRuns {
     /// Reads `text` against the load `layout` (a plan: its tray, food grid and configurations).
     /// The first problem found is returned, naming the line.
     pub fn parse(text: &str, layout: &Plan, options: ReadOptions) -> Result<Self, PlanError> {
+        crate::error::check_length("runs file", text, MAX_RUNS_BYTES)?;
         let sheet = Sheet::parse(text)?;
         sheet.check_format("traycast-runs", "1")?;
         let name = sheet
@@ -144,22 +168,29 @@ impl HeatingRuns {
         let mut series: Vec<Series> = Vec::new();
         let mut series_index: HashMap<(usize, PositionKey), usize> = HashMap::new();
         let mut ignored = 0;
-        for (line, rec) in &sheet.records {
-            let line = *line;
+        let mut readings = 0usize;
+        for record in sheet.records() {
+            let (line, rec) = record?;
             let at = |m: String| at_line(line, m);
+            readings += 1;
+            if readings > MAX_READINGS {
+                return Err(at(format!(
+                    "more than {MAX_READINGS} readings; split the runs into several files, or thin the readings (a reading every second is plenty)"
+                )));
+            }
             if rec.len() != 6 {
                 return Err(at(format!("has {} fields, expected 6", rec.len())));
             }
             let number = |k: usize| -> Result<f64, PlanError> {
                 match rec[k].parse::<f64>() {
                     Ok(v) if v.is_finite() => Ok(v),
-                    _ => Err(at(format!("{} '{}' is not a number", cols[k], rec[k]))),
+                    _ => Err(at(format!("{} '{}' is not a number", cols[k], &rec[k]))),
                 }
             };
             let whole = |k: usize, max: usize| -> Result<usize, PlanError> {
                 let v: usize = rec[k]
                     .parse()
-                    .map_err(|_| at(format!("{} '{}' is not a whole number", cols[k], rec[k])))?;
+                    .map_err(|_| at(format!("{} '{}' is not a whole number", cols[k], &rec[k])))?;
                 if v >= max {
                     return Err(at(format!(
                         "{} {v} is out of range (0 to {})",
@@ -177,6 +208,11 @@ impl HeatingRuns {
             if t < 0.0 {
                 return Err(at(format!("time {t} s is negative")));
             }
+            if t > MAX_TIME_S {
+                return Err(at(format!(
+                    "time {t} s is past {MAX_TIME_S} s (one day): check the time column's units"
+                )));
+            }
             let (cell, key, position) = if by_mm {
                 let (x, y) = (number(3)?, number(4)?);
                 let (w, h) = (
@@ -188,7 +224,8 @@ impl HeatingRuns {
                         "probe at x {x} mm, y {y} mm is off the {w} × {h} mm tray"
                     )));
                 }
-                let cell = (y / tray.cell_mm) as usize * tray.width + (x / tray.cell_mm) as usize;
+                let cell = cell_under(y, tray.cell_mm, tray.height) * tray.width
+                    + cell_under(x, tray.cell_mm, tray.width);
                 (
                     cell,
                     PositionKey::Millimetres(x.to_bits(), y.to_bits()),
@@ -215,15 +252,15 @@ impl HeatingRuns {
                     if runs[r].config != config {
                         return Err(at(format!(
                             "run '{}' heated configuration {} from line {}; one run heats one configuration",
-                            rec[0], runs[r].config, runs[r].first_line
+                            &rec[0], runs[r].config, runs[r].first_line
                         )));
                     }
                     r
                 }
                 None => {
-                    run_index.insert(rec[0].clone(), runs.len());
+                    run_index.insert(rec[0].to_string(), runs.len());
                     runs.push(Run {
-                        id: rec[0].clone(),
+                        id: rec[0].to_string(),
                         config,
                         first_line: line,
                         duration_s: 0.0,
@@ -248,13 +285,13 @@ impl HeatingRuns {
                 if t == last.t {
                     return Err(at(format!(
                         "duplicated reading: run '{}', {} at {t} s was already given on line {}",
-                        rec[0], series[s].position, last.line
+                        &rec[0], series[s].position, last.line
                     )));
                 }
                 if t < last.t {
                     return Err(at(format!(
                         "time goes backwards: run '{}', {} reads at {t} s after {} s on line {}",
-                        rec[0], series[s].position, last.t, last.line
+                        &rec[0], series[s].position, last.t, last.line
                     )));
                 }
             }

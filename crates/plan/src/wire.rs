@@ -19,6 +19,8 @@ pub const LINK_TAG: &str = "tc1.";
 pub const MAX_LINK: usize = 64 * 1024;
 /// Largest decompressed plan accepted, bytes (a bound against decompression bombs).
 pub const MAX_INFLATED: usize = 256 * 1024;
+/// Longest plan JSON read, bytes (a 128 × 128 plan is well under 1 MiB).
+pub const MAX_PLAN_JSON: usize = 16 << 20;
 
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
 struct PlanDoc {
@@ -311,6 +313,7 @@ pub fn to_json(plan: &Plan) -> String {
 
 /// Reads a plan JSON file; the error names the line or the field.
 pub fn from_json(text: &str) -> Result<Plan, PlanError> {
+    crate::error::check_length("plan file", text, MAX_PLAN_JSON)?;
     let doc: PlanDoc = serde_json::from_str(text)
         .map_err(|e| PlanError::new(format!("line {}", e.line()), e.to_string()))?;
     Plan::try_from(doc)

@@ -260,7 +260,8 @@ impl DwellSolver {
         }
         let mut sol = self.solution(spec, status, it, predictions);
         // Never call a point optimal that its own certificate does not prove.
-        if !(sol.kkt_residual <= crate::CERTIFY_TOL) && sol.status != Status::IterationLimit {
+        let certified = sol.kkt_residual.is_finite() && sol.kkt_residual <= crate::CERTIFY_TOL;
+        if !certified && sol.status != Status::IterationLimit {
             sol.status = Status::Uncertified;
         }
         Ok(sol)

@@ -266,14 +266,25 @@ pub fn verdict(category: SafetyCategory, after_standing: &[f64], stood_seconds: 
 
 /// Judges an item whose cell temperatures are only known within bounds: minimum requirements are
 /// checked on the coldest lower bound, maximum requirements on the warmest upper bound.
+///
+/// No temperatures, or any that is not a finite number, can never be judged safe: the verdict then
+/// fails with a NaN margin (shown as "no value"), rather than judging the cells that are left.
 pub fn verdict_within(
     category: SafetyCategory,
     lower: &[f64],
     upper: &[f64],
     stood_seconds: f64,
 ) -> Verdict {
-    let coldest = lower.iter().copied().fold(f64::INFINITY, f64::min);
-    let warmest = upper.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let judgeable =
+        !lower.is_empty() && !upper.is_empty() && lower.iter().chain(upper).all(|v| v.is_finite());
+    let (coldest, warmest) = if judgeable {
+        (
+            lower.iter().copied().fold(f64::INFINITY, f64::min),
+            upper.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        )
+    } else {
+        (f64::NAN, f64::NAN)
+    };
     let reqs = category.requirements();
     let margin_of = |r: &Requirement| {
         if r.minimum {

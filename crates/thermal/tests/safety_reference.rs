@@ -114,3 +114,15 @@ fn bounded_verdict_judges_minimums_on_lower_and_maximums_on_upper_bounds() {
         verdict(SafetyCategory::Poultry, &[75.0], 120.0)
     );
 }
+
+/// Regression (hostile-input run, case 1): a NaN among an item's temperatures used to be skipped by
+/// the minimum, so the verdict judged the cells that were left. Nothing non-finite is ever judged
+/// safe, and no temperatures at all is not a pass either.
+#[test]
+fn non_finite_temperatures_never_pass() {
+    for temps in [&[80.0, f64::NAN, 90.0][..], &[f64::INFINITY], &[]] {
+        let v = verdict(SafetyCategory::Poultry, temps, 120.0);
+        assert!(!v.safe, "{temps:?}");
+        assert!(v.margin.is_nan(), "{temps:?}: {}", v.margin);
+    }
+}
