@@ -5,6 +5,8 @@
 
 mod bench;
 mod bench_web;
+mod fuzz;
+mod limits;
 mod run;
 mod web;
 
@@ -19,7 +21,9 @@ commands:
                  (--reuse: skip criterion, read its last results)
   serve          build the workbench and serve it on 127.0.0.1 (opens on the built-in demo)
   e2e            build the workbench and run the browser tests only
-  bench-web      200 scripted brush strokes in headless Chromium, against native, as a table";
+  bench-web      200 scripted brush strokes in headless Chromium, against native, as a table
+  fuzz           every fuzz target for 1 000 000 executions (--runs N to change; nightly)
+  limits         peak memory of the command line on inputs at every stated limit";
 
 /// Library crates that must build for wasm32-unknown-unknown (no I/O, no browser knowledge).
 pub const WASM_CRATES: &[&str] = &[
@@ -37,6 +41,16 @@ fn main() -> ExitCode {
         Some("serve") => web::serve(),
         Some("e2e") => web::e2e(),
         Some("bench-web") => bench_web::run(),
+        Some("fuzz") => match args.iter().position(|a| a == "--runs") {
+            None => fuzz::run_all(1_000_000),
+            Some(k) => match args.get(k + 1).and_then(|v| v.parse().ok()) {
+                Some(n) => fuzz::run_all(n),
+                None => Err("--runs takes a whole number".into()),
+            },
+        },
+        Some("limits") => limits::run(),
+        Some("limits-child") => limits::child_args(&args[1..])
+            .and_then(|(program, rest)| limits::child(&program, &rest)),
         _ => {
             eprintln!("{USAGE}");
             return ExitCode::from(2);
@@ -76,6 +90,8 @@ fn test() -> Result<(), String> {
     // The fuzz target lives outside the workspace (cargo fuzz wants nightly); keep it compiling.
     cargo(&["check", "--manifest-path", "fuzz/Cargo.toml"])?;
     cargo(&["test", "--workspace"])?;
+    // Peak memory of the command line at every stated input limit (< 512 MiB).
+    limits::run()?;
     // UI logic in headless Chromium, then the release bundle and the browser tests (installs
     // Trunk, wasm-bindgen, Chromium and ChromeDriver if missing).
     web::component_tests()?;
