@@ -1,6 +1,7 @@
 //! Fuzz target: heating runs read against an arbitrary layout (tray size, cell pitch, food grid,
-//! configurations all from the input), with cell or millimetre positions, then calibrated: never a
-//! panic, and every accepted series sits on a food cell of the layout.
+//! configurations all from the input), with millimetre or cell positions under a ready header or
+//! the input's own, then calibrated: never a panic, and every accepted series sits on a food cell
+//! of the layout.
 #![no_main]
 
 use libfuzzer_sys::fuzz_target;
@@ -42,10 +43,18 @@ fuzz_target!(|data: &[u8]| {
         return;
     }
     let (plan, options) = layout(&data[..8]);
-    let Ok(text) = std::str::from_utf8(&data[8..]) else {
+    let Ok(body) = std::str::from_utf8(&data[8..]) else {
         return;
     };
-    if let Ok(runs) = HeatingRuns::parse(text, &plan, options) {
+    // Most inputs get a header, so the fuzzer spends its time on records: millimetre positions,
+    // cell positions, or whatever the input itself says.
+    let unit = if options.fahrenheit { "temp_f" } else { "temp_c" };
+    let text = match data[3] >> 6 {
+        0 | 1 => format!("# traycast-runs 1\nrun,config,time_s,x_mm,y_mm,{unit}\n{body}"),
+        2 => format!("# traycast-runs 1\nrun,config,time_s,row,col,{unit}\n{body}"),
+        _ => body.to_string(),
+    };
+    if let Ok(runs) = HeatingRuns::parse(&text, &plan, options) {
         for s in &runs.series {
             assert!(s.cell < plan.tray.cells() && plan.food[s.cell] != 0);
         }

@@ -69,6 +69,17 @@ fn read_picked_file(
         return;
     };
     let file = gloo::file::File::from(file);
+    // The largest file any reader takes (a runs file); each parser then checks its own limit.
+    let max = traycast_plan::runs::MAX_RUNS_BYTES as u64;
+    if file.size() > max {
+        notice.set(Some(format!(
+            "'{}' is {} MiB; files of at most {} MiB are read. Nothing was changed.",
+            file.name(),
+            file.size() >> 20,
+            max >> 20
+        )));
+        return;
+    }
     leptos::task::spawn_local(async move {
         match gloo::file::futures::read_as_text(&file).await {
             Ok(text) => then(text),
@@ -389,7 +400,7 @@ pub fn App() -> impl IntoView {
                 let items = p.items.iter().zip(&e.items).map(|(it, s)| {
                     let v = &s.verdict;
                     let on = if s.spread.is_some() { " at the lower bound" } else { "" };
-                    let verdict = if v.safe { format!("meets{on}, +{:.1}", u.diff(v.margin)) } else { format!("FAILS{on}, {:.1}", u.diff(v.margin)) };
+                    let verdict = if !v.margin.is_finite() { "FAILS: no temperature to judge".to_string() } else if v.safe { format!("meets{on}, +{:.1}", u.diff(v.margin)) } else { format!("FAILS{on}, {:.1}", u.diff(v.margin)) };
                     let range = |r: (f64, f64)| format!("{:.1}–{:.1} {}", u.temp(r.0), u.temp(r.1), u.symbol());
                     let spread = s.spread.as_ref().map(|sp| view! {
                         <td class="spread" title="95 % from the maps' rate errors">{range(sp.coldest)}</td>
