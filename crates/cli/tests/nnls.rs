@@ -194,3 +194,44 @@ fn bad_files_exit_2_naming_file_line_and_column() {
         assert!(err.contains(expect), "{err} should contain {expect}");
     }
 }
+
+/// Regressions from the hostile-input run (cases 5, 6 and 7): each exits 2 naming what is wrong,
+/// before anything large is allocated.
+#[test]
+fn hostile_sizes_and_values_exit_2_naming_the_place() {
+    let dir = scratch("hostile");
+    let write = |name: &str, text: &str| {
+        let p = dir.join(name);
+        std::fs::write(&p, text).unwrap();
+        p.display().to_string()
+    };
+    let small = write("A.csv", "1,2\n3,1\n");
+    let y = write("y.csv", "1\n2\n");
+    // Case 5: a huge --repeat used to overflow or abort.
+    for n in ["99999999999", "0", "100001"] {
+        let (code, _, err) = run(&["--rates", &small, "--target", &y, "--repeat", n]);
+        assert_eq!(code, 2, "{n}: {err}");
+        assert!(err.contains("--repeat"), "{err}");
+    }
+    // Case 6: 3 × 16 000 used to build a 2 GB Gram matrix.
+    let wide = write("wide.csv", &format!("{}1\n", "1,".repeat(15_999)).repeat(3));
+    let y3 = write("y3.csv", "1\n1\n1\n");
+    let (code, _, err) = run(&["--rates", &wide, "--target", &y3]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("wide.csv:1:") && err.contains("512"), "{err}");
+    // Case 7: values near the float limits used to come back "optimal" and wrong.
+    let tiny = write("tiny.csv", "1e-300,2e-300\n3e-300,1e-300\n");
+    let (code, _, err) = run(&["--rates", &tiny, "--target", &y]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("tiny.csv:1:1:") && err.contains("out of range"),
+        "{err}"
+    );
+    let huge_y = write("huge.csv", "1\n1e300\n");
+    let (code, _, err) = run(&["--rates", &small, "--target", &huge_y]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("huge.csv:2:") && err.contains("out of range"),
+        "{err}"
+    );
+}

@@ -25,9 +25,9 @@ impl PlanError {
 pub(crate) fn check_length(what: &str, text: &str, max: usize) -> Result<(), PlanError> {
     if text.len() > max {
         return Err(PlanError::new(
-            "file",
+            "size",
             format!(
-                "is {} bytes; a {what} may be at most {max} bytes ({} MiB)",
+                "the text is {} bytes; a {what} may be at most {max} bytes ({} MiB)",
                 text.len(),
                 max >> 20
             ),
