@@ -8,7 +8,7 @@ use crate::units::Unit;
 use leptos::html;
 use leptos::prelude::*;
 use traycast_plan::calibrate::{self, QualityReport};
-use traycast_plan::evaluate::{Diagnosis, Evaluation, Evaluator, Options, Quick};
+use traycast_plan::evaluate::{Evaluation, Evaluator, Options, Quick};
 use traycast_plan::library::MapLibrary;
 use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
 use traycast_plan::runs::{HeatingRuns, ReadOptions};
@@ -416,11 +416,7 @@ pub fn App() -> impl IntoView {
                     }
                 }).collect_view();
                 let zones = p.zones.iter().zip(&e.zones).map(|(z, s)| {
-                    let diag = match &s.diagnosis {
-                        Some(Diagnosis::Physics(m)) => format!("physics: {m}"),
-                        Some(Diagnosis::Setting(m)) => format!("setting: {m}"),
-                        None => String::new(),
-                    };
+                    let diag = s.diagnosis.as_ref().map(ToString::to_string).unwrap_or_default();
                     view! {
                         <tr><td>{z.name.clone()}</td><td>{format!("{:.0} %", 100.0 * s.coverage_linear)}</td><td>{format!("{:.0} %", 100.0 * s.coverage_simulated)}</td>
                         <td>{format!("{:.1}", u.diff(s.rms_simulated))}</td><td class="diagnosis">{diag}</td></tr>
@@ -619,7 +615,7 @@ pub fn App() -> impl IntoView {
                 <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_import_library /></label>
                 <label class="file">"Calibrate from heating runs (CSV)"<input id="import-runs" type="file" accept=".csv,text/csv" on:change=on_import_runs /></label>
                 <label class="check"><input id="runs-fahrenheit" type="checkbox" prop:checked=move || runs_in_f.get() on:change=move |ev| runs_in_f.set(event_target_checked(&ev)) />"runs are in °F"</label>
-                <button on:click=move |_| { match demos::heating_runs(&plan.get_untracked(), &demos::RunRecipe::default()) { Ok(t) => download("illustrative-runs.csv", "text/csv", &t), Err(e) => notice.set(Some(format!("No runs could be invented for this tray: {e}"))) } }>"Invent bench runs for this tray (illustrative)"</button>
+                <button on:click=move |_| { match traycast_plan::runs::heating_runs(&plan.get_untracked(), &traycast_plan::runs::RunRecipe::default()) { Ok(t) => download("illustrative-runs.csv", "text/csv", &t), Err(e) => notice.set(Some(format!("No runs could be invented for this tray: {e}"))) } }>"Invent bench runs for this tray (illustrative)"</button>
                 <label class="file">"Open plan file"<input id="import-plan" type="file" accept=".json,application/json" on:change=on_import_plan /></label>
                 <div class="row">
                     <button on:click=move |_| download("plan.traycast.json", "application/json", &wire::to_json(&plan.get_untracked()))>"Save plan"</button>

@@ -4,7 +4,7 @@ use crate::error::CliError;
 use crate::progress::Progress;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
-use traycast_plan::evaluate::{self, Diagnosis, Evaluation, Options};
+use traycast_plan::evaluate::{self, Evaluation, Options};
 use traycast_plan::library::MapLibrary;
 use traycast_plan::model::Plan;
 use traycast_plan::{PlanError, demos, wire};
@@ -87,8 +87,9 @@ pub fn demo(name: Option<&str>, out: Option<&Path>, runs: Option<&Path>) -> Resu
     })?;
     if let Some(path) = runs {
         let _progress = Progress::after_a_second("inventing bench runs");
-        let text = demos::heating_runs(&plan, &demos::RunRecipe::default())
-            .map_err(|e| CliError(e.to_string()))?;
+        let text =
+            traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
+                .map_err(|e| CliError(e.to_string()))?;
         write(path, &text)?;
         eprintln!(
             "wrote illustrative heating runs (invented data) to {}",
@@ -155,14 +156,8 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
             r.rms_linear,
             r.rms_simulated
         );
-        match &r.diagnosis {
-            Some(Diagnosis::Physics(m)) => {
-                let _ = writeln!(s, "    physics: {m}");
-            }
-            Some(Diagnosis::Setting(m)) => {
-                let _ = writeln!(s, "    setting: {m}");
-            }
-            None => {}
+        if let Some(d) = &r.diagnosis {
+            let _ = writeln!(s, "    {d}");
         }
     }
     let _ = writeln!(

@@ -11,7 +11,8 @@ use traycast_plan::runs::{HeatingRuns, ReadOptions};
 
 fn bench(c: &mut Criterion) {
     let plan = demos::demo("lunch-tray").unwrap();
-    let text = demos::heating_runs(&plan, &demos::RunRecipe::default()).unwrap();
+    let text = traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
+        .unwrap();
     let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
     let mut group = c.benchmark_group("calibrate/lunch-tray");
     group.sample_size(20);

@@ -14,7 +14,7 @@
 //! absorbs the oven's rated power.
 
 use crate::error::PlanError;
-use traycast_solver::synthetic::SplitMix;
+use traycast_rng::SplitMix;
 use traycast_thermal::dielectric::LossClass;
 
 const C0: f64 = 299_792_458.0;

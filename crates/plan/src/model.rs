@@ -145,6 +145,17 @@ impl Plan {
         catalogue::find(&self.items[k].food)
     }
 
+    /// Absorption class per cell: the layout a library's recorded loads are matched against.
+    pub fn loss_layout(&self) -> Vec<Option<traycast_thermal::dielectric::LossClass>> {
+        (0..self.tray.cells())
+            .map(|i| {
+                self.item_at(i)
+                    .and_then(|k| self.catalogue_food(k))
+                    .map(|f| f.loss)
+            })
+            .collect()
+    }
+
     /// Item index (0-based) in cell `i`, if any.
     pub fn item_at(&self, i: usize) -> Option<usize> {
         (self.food[i] > 0).then(|| self.food[i] as usize - 1)

@@ -1,7 +1,7 @@
 //! The evaluation as one JSON object: what `traycast solve --format json` prints and what the
 //! workbench's `window.traycast.evaluation()` returns, so the two can never disagree in shape.
 
-use crate::evaluate::{Diagnosis, Evaluation};
+use crate::evaluate::Evaluation;
 use crate::model::Plan;
 
 /// The evaluation's numbers by name (NaN becomes null).
@@ -16,7 +16,7 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
         "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
             "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
             "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
-            "diagnosis": r.diagnosis.as_ref().map(|d| match d { Diagnosis::Physics(m) => format!("physics: {m}"), Diagnosis::Setting(m) => format!("setting: {m}") }),
+            "diagnosis": r.diagnosis.as_ref().map(ToString::to_string),
         })).collect::<Vec<_>>(),
         "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
             "name": i.name, "min_c": finite(&r.min), "mean_c": finite(&r.mean), "max_c": finite(&r.max), "safe": r.verdict.safe,

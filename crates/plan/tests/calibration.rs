@@ -9,7 +9,7 @@ use traycast_plan::library::RateBasis;
 use traycast_plan::model::{FoodItem, MapSource, Plan};
 use traycast_plan::runs::{HeatingRuns, ReadOptions};
 use traycast_plan::{demos, regression};
-use traycast_solver::synthetic::SplitMix;
+use traycast_rng::SplitMix;
 
 #[test]
 fn line_fits_match_scipy_linregress() {
@@ -499,7 +499,8 @@ fn demo_runs_calibrate_back_to_the_field_model() {
     // surface loss) and lagging noisy probes; calibrating them must land near the field model's
     // own thawed rates.
     let plan = demos::demo("side-by-side").unwrap();
-    let text = demos::heating_runs(&plan, &demos::RunRecipe::default()).unwrap();
+    let text = traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
+        .unwrap();
     let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
     let cal = calibrate::calibrate(&runs, &plan, &Settings::default()).unwrap();
     let maps = evaluate::maps_for(&plan, None).unwrap();
@@ -535,7 +536,8 @@ fn interval_propagation_matches_sampling() {
     // of the rates from their stated normal errors, cell by cell, in the energy the bounds stand
     // for (h(bound) − h(nominal) on the food's enthalpy curve).
     let plan = demos::demo("side-by-side").unwrap();
-    let text = demos::heating_runs(&plan, &demos::RunRecipe::default()).unwrap();
+    let text = traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
+        .unwrap();
     let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
     let lib = calibrate::calibrate(&runs, &plan, &Settings::default())
         .unwrap()
@@ -586,7 +588,8 @@ fn interval_propagation_matches_sampling() {
 #[test]
 fn the_safety_verdict_is_judged_on_the_lower_bound() {
     let plan = demos::demo("side-by-side").unwrap();
-    let text = demos::heating_runs(&plan, &demos::RunRecipe::default()).unwrap();
+    let text = traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
+        .unwrap();
     let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
     let mut lib = calibrate::calibrate(&runs, &plan, &Settings::default())
         .unwrap()

@@ -4,42 +4,7 @@
 //! Invented data: it describes no real oven.
 
 use crate::problem::Rates;
-
-/// SplitMix64: a tiny, well-known deterministic generator (Steele, Lea & Flood 2014).
-#[derive(Clone, Debug)]
-pub struct SplitMix(u64);
-
-impl SplitMix {
-    /// A generator from a seed.
-    pub fn new(seed: u64) -> Self {
-        SplitMix(seed)
-    }
-
-    /// Next 64 random bits.
-    pub fn next_u64(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform in [0, 1).
-    pub fn unit(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
-    }
-
-    /// Uniform integer in [0, n).
-    pub fn below(&mut self, n: u64) -> u64 {
-        self.next_u64() % n.max(1)
-    }
-
-    /// Standard normal (Box–Muller, one of the pair).
-    pub fn normal(&mut self) -> f64 {
-        let (u, v) = (self.unit().max(f64::MIN_POSITIVE), self.unit());
-        (-2.0 * u.ln()).sqrt() * (std::f64::consts::TAU * v).cos()
-    }
-}
+use traycast_rng::SplitMix;
 
 /// A tray-shaped problem: rates for `width × height` cells (row-major cells) and a painted target rise.
 #[derive(Clone, Debug)]

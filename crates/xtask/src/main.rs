@@ -27,6 +27,7 @@ commands:
 
 /// Library crates that must build for wasm32-unknown-unknown (no I/O, no browser knowledge).
 pub const WASM_CRATES: &[&str] = &[
+    "traycast-rng",
     "traycast-solver",
     "traycast-thermal",
     "traycast-plan",

@@ -21,6 +21,10 @@
 //!
 //! Readings over cells the layout leaves empty are counted and ignored.
 
+mod invent;
+
+pub use invent::{RunRecipe, heating_runs};
+
 use crate::csvtext::{Sheet, at_line};
 use crate::error::PlanError;
 use crate::model::Plan;

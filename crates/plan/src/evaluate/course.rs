@@ -1,0 +1,92 @@
+//! The simulated time course of a plan (the thermal crate's simulation on the plan's load and
+//! thawed maps) and the warnings about cells it drove outside the model.
+
+use super::maps::PlanMaps;
+use crate::error::PlanError;
+use crate::model::Plan;
+use traycast_thermal::ThermalError;
+use traycast_thermal::material::Material;
+use traycast_thermal::schedule::Schedule;
+use traycast_thermal::simulate::{self, CellFill, Load, Settings, TimeCourse, Tray};
+
+/// Simulates `schedule` on the plan's load with its thawed maps.
+pub fn time_course(
+    plan: &Plan,
+    maps: &PlanMaps,
+    mats: &[Material],
+    schedule: &Schedule,
+    settings: &Settings,
+) -> Result<TimeCourse, PlanError> {
+    let n = maps.cells;
+    let cells: Vec<Option<CellFill>> = (0..n)
+        .map(|i| {
+            plan.item_at(i).map(|k| CellFill {
+                item: k,
+                thickness: plan.items[k].thickness_mm / 1000.0,
+            })
+        })
+        .collect();
+    let start: Vec<f64> = super::problem::start_temps(plan)
+        .iter()
+        .map(|v| if v.is_nan() { 20.0 } else { *v })
+        .collect();
+    let load = Load {
+        tray: Tray {
+            width: plan.tray.width,
+            height: plan.tray.height,
+            cell_size: plan.tray.cell_mm / 1000.0,
+        },
+        items: mats,
+        cells: &cells,
+        start: &start,
+    };
+    let sim_maps = simulate::Maps {
+        configs: maps.configs,
+        rates: &maps.thawed,
+    };
+    simulate::simulate(&load, &sim_maps, schedule, settings).map_err(|e| match e {
+        ThermalError::Diverged { cell, time_s } => PlanError::new(
+            format!(
+                "simulation, cell row {}, col {}",
+                cell / plan.tray.width,
+                cell % plan.tray.width
+            ),
+            format!(
+                "the temperature of '{}' stopped being a number at {time_s:.1} s: the plan drives the food past what the model covers; reduce the power, the time or the thickness",
+                plan.item_at(cell)
+                    .map_or("an empty cell", |k| plan.items[k].name.as_str())
+            ),
+        ),
+        other => other.into(),
+    })
+}
+
+/// Warnings about cells the time course drove outside the model: boiled dry, or past
+/// [`simulate::MODEL_LIMIT_C`] (dried food scorching). One line per item.
+pub(super) fn course_warnings(plan: &Plan, course: &TimeCourse) -> Vec<String> {
+    let mut out = Vec::new();
+    for (k, item) in plan.items.iter().enumerate() {
+        let cells: Vec<usize> = (0..course.peak.len())
+            .filter(|&i| plan.item_at(i) == Some(k))
+            .collect();
+        let dry = cells.iter().filter(|&&i| course.boiled_dry[i]).count();
+        if dry > 0 {
+            out.push(format!(
+                "{dry} cell(s) of '{}' boiled dry: all their water evaporated and nothing is left there; shorten the heating or lower the power",
+                item.name
+            ));
+        }
+        let hottest = cells
+            .iter()
+            .map(|&i| course.peak[i])
+            .fold(f64::NEG_INFINITY, f64::max);
+        if hottest > simulate::MODEL_LIMIT_C {
+            out.push(format!(
+                "'{}' reaches {hottest:.0} °C: it has dried out and would scorch; above {:.0} °C the food property model no longer holds and the predictions are not physical",
+                item.name,
+                simulate::MODEL_LIMIT_C
+            ));
+        }
+    }
+    out
+}

@@ -1,0 +1,199 @@
+//! A plan's heating maps: from the illustrative field model or the best-matching recorded load of a
+//! library, in the food's starting state (what the solver uses) and thawed (what the time course
+//! scales by absorption).
+
+use crate::error::PlanError;
+use crate::field::{self, Absorber};
+use crate::library::{MapLibrary, RateBasis, Window};
+use crate::model::{MapSource, Plan, Sequencing};
+use traycast_thermal::material::Material;
+
+/// Heating maps for a plan, in both forms the pipeline needs.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlanMaps {
+    /// Configurations.
+    pub configs: usize,
+    /// Cells.
+    pub cells: usize,
+    /// As loaded (the state the food starts in), config-major, K/s: what the solver uses.
+    pub loaded: Vec<f64>,
+    /// Thawed reference state, config-major, K/s: what the time course scales by absorption.
+    pub thawed: Vec<f64>,
+    /// Standard errors of `loaded`, config-major, K/s, when the maps were calibrated.
+    pub loaded_se: Option<Vec<f64>>,
+    /// Map values (cell × configuration, food cells of the plan) filled in rather than measured.
+    pub filled: usize,
+    /// Where they come from.
+    pub provenance: Provenance,
+}
+
+/// Where a plan's maps come from.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Provenance {
+    /// The illustrative field model.
+    Synthetic,
+    /// A recorded load of a library.
+    Library {
+        /// Library name.
+        library: String,
+        /// Recorded load used.
+        load: String,
+        /// Similarity to the plan's layout.
+        score: f64,
+        /// Replay window.
+        window: Window,
+    },
+}
+
+/// Materials of the plan's items.
+pub fn materials(plan: &Plan) -> Result<Vec<Material>, PlanError> {
+    (0..plan.items.len())
+        .map(|k| {
+            let f = plan.catalogue_food(k).ok_or_else(|| {
+                PlanError::new(format!("items[{k}].food"), "not a catalogue food")
+            })?;
+            Material::food(&f.composition(), f.loss).map_err(PlanError::from)
+        })
+        .collect()
+}
+
+/// Absorption ratio of each food cell at its start temperature (1 thawed, ≪ 1 frozen).
+fn start_absorption(plan: &Plan, mats: &[Material]) -> Vec<f64> {
+    (0..plan.tray.cells())
+        .map(|i| match plan.item_at(i) {
+            Some(k) => {
+                let m = &mats[k];
+                m.state(m.enthalpy(plan.items[k].start_c), &mut 0).2
+            }
+            None => 1.0,
+        })
+        .collect()
+}
+
+/// The plan's heating maps: from the field model, or the best-matching load of `library`.
+pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, PlanError> {
+    let mats = materials(plan)?;
+    let absorb = start_absorption(plan, &mats);
+    let n = plan.tray.cells();
+    let configs = plan.oven.configs;
+    match &plan.maps {
+        MapSource::Synthetic { seed } => {
+            let cells: Vec<Option<Absorber>> = (0..n)
+                .map(|i| {
+                    plan.item_at(i).map(|k| Absorber {
+                        class: plan.catalogue_food(k).expect("validated").loss,
+                        thickness: plan.items[k].thickness_mm / 1000.0,
+                        density: mats[k].density,
+                        cp: mats[k].reference_cp,
+                    })
+                })
+                .collect();
+            let t = plan.tray;
+            let fm = field::generate(
+                t.width,
+                t.height,
+                t.cell_mm / 1000.0,
+                &cells,
+                configs,
+                *seed,
+                plan.oven.power_w,
+            )?;
+            let loaded = fm
+                .thawed
+                .iter()
+                .enumerate()
+                .map(|(k, r)| r * absorb[k % n])
+                .collect();
+            Ok(PlanMaps {
+                configs,
+                cells: n,
+                loaded,
+                thawed: fm.thawed,
+                loaded_se: None,
+                filled: 0,
+                provenance: Provenance::Synthetic,
+            })
+        }
+        MapSource::Library { name } => {
+            let lib = library.ok_or_else(|| {
+                PlanError::new(
+                    "maps",
+                    format!(
+                        "the plan uses map library '{name}', which is not loaded; import it first"
+                    ),
+                )
+            })?;
+            if lib.width != plan.tray.width || lib.height != plan.tray.height {
+                return Err(PlanError::new(
+                    "maps",
+                    format!(
+                        "library '{}' is for a {} × {} tray, the plan's is {} × {}",
+                        lib.name, lib.width, lib.height, plan.tray.width, plan.tray.height
+                    ),
+                ));
+            }
+            if lib.configs != configs {
+                return Err(PlanError::new(
+                    "oven.configs",
+                    format!(
+                        "library '{}' has {} configurations, the plan says {configs}",
+                        lib.name, lib.configs
+                    ),
+                ));
+            }
+            let m = lib
+                .best_match(&plan.loss_layout())
+                .ok_or_else(|| PlanError::new("maps", "library holds no load"))?;
+            let rec = &lib.loads[m.load];
+            // Rates (and their errors) in the state the plan's food starts in, and thawed.
+            let to_loaded = |k: usize| match lib.basis {
+                RateBasis::AsLoaded => 1.0,
+                RateBasis::Thawed => absorb[k % n],
+            };
+            let to_thawed = |k: usize| to_loaded(k) / absorb[k % n].max(1e-6);
+            let scaled = |v: &[f64], f: &dyn Fn(usize) -> f64| -> Vec<f64> {
+                v.iter().enumerate().map(|(k, r)| r * f(k)).collect()
+            };
+            let loaded = scaled(&rec.rates, &to_loaded);
+            let thawed = scaled(&rec.rates, &to_thawed);
+            let loaded_se = rec.uncertainty.as_ref().map(|u| scaled(&u.se, &to_loaded));
+            let filled = rec.uncertainty.as_ref().map_or(0, |u| {
+                u.filled
+                    .iter()
+                    .enumerate()
+                    .filter(|(k, f)| **f && plan.food[k % n] > 0)
+                    .count()
+            });
+            Ok(PlanMaps {
+                configs,
+                cells: n,
+                loaded,
+                thawed,
+                loaded_se,
+                filled,
+                provenance: Provenance::Library {
+                    library: lib.name.clone(),
+                    load: rec.name.clone(),
+                    score: m.score,
+                    window: m.window,
+                },
+            })
+        }
+    }
+}
+
+/// Layout fields that change the maps (targets, names and oven timing do not).
+pub(super) fn maps_key(plan: &Plan) -> Plan {
+    let mut p = plan.clone();
+    p.name.clear();
+    p.zones.clear();
+    p.zone.iter_mut().for_each(|z| *z = 0);
+    p.items.iter_mut().for_each(|i| i.name.clear());
+    p.oven.budget_s = None;
+    p.oven.limit_s = None;
+    p.oven.quantum_s = 0.0;
+    p.oven.time_penalty = 0.0;
+    p.oven.sequencing = Sequencing::Blocks;
+    p.oven.standing_s = 0.0;
+    p
+}

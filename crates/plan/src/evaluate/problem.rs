@@ -1,0 +1,162 @@
+//! The dwell problem of a plan: per-cell bands and start temperatures, the solve (warm when only
+//! targets changed) with its hard-cap loop, the controller's time quantum, and the linear
+//! prediction.
+
+use super::Evaluator;
+use super::maps::PlanMaps;
+use crate::error::PlanError;
+use crate::model::Plan;
+use traycast_solver::{DwellSolver, Rates, Spec};
+
+pub(super) fn band_distance(v: f64, lo: f64, hi: f64) -> f64 {
+    traycast_solver::band_distance(v, lo, hi)
+}
+
+pub(super) fn rms(v: impl Iterator<Item = f64>) -> f64 {
+    let (mut s, mut n) = (0.0, 0usize);
+    for x in v {
+        s += x * x;
+        n += 1;
+    }
+    if n == 0 { 0.0 } else { (s / n as f64).sqrt() }
+}
+
+/// Per-cell target band in °C (min, effective max with the cap) for zoned cells.
+pub(super) fn bands(plan: &Plan) -> Vec<Option<(f64, f64)>> {
+    (0..plan.tray.cells())
+        .map(|i| {
+            plan.zone_at(i).map(|z| {
+                let zone = &plan.zones[z];
+                (
+                    zone.min_c,
+                    zone.cap_c.map_or(zone.max_c, |c| c.min(zone.max_c)),
+                )
+            })
+        })
+        .collect()
+}
+
+pub(super) fn start_temps(plan: &Plan) -> Vec<f64> {
+    (0..plan.tray.cells())
+        .map(|i| plan.item_at(i).map_or(f64::NAN, |k| plan.items[k].start_c))
+        .collect()
+}
+
+/// Linear prediction start + Σ_j rate_j·x_j for every food cell (NaN elsewhere).
+pub fn linear_prediction(plan: &Plan, maps: &PlanMaps, dwell: &[f64]) -> Vec<f64> {
+    let n = maps.cells;
+    let start = start_temps(plan);
+    (0..n)
+        .map(|i| {
+            if start[i].is_nan() {
+                return f64::NAN;
+            }
+            start[i]
+                + (0..maps.configs)
+                    .map(|c| maps.loaded[c * n + i] * dwell[c])
+                    .sum::<f64>()
+        })
+        .collect()
+}
+
+/// Rounds dwells to the controller quantum without breaking the budget.
+pub(super) fn quantise(dwell: &mut [f64], quantum: f64, budget: Option<f64>) {
+    if quantum <= 0.0 {
+        return;
+    }
+    for d in dwell.iter_mut() {
+        *d = (*d / quantum).round() * quantum;
+    }
+    if let Some(b) = budget {
+        while dwell.iter().sum::<f64>() > b + 1e-9 {
+            let k = (0..dwell.len())
+                .max_by(|&a, &b| dwell[a].total_cmp(&dwell[b]))
+                .expect("non-empty");
+            dwell[k] = (dwell[k] - quantum).max(0.0);
+        }
+    }
+}
+
+impl Evaluator {
+    /// Solves the dwell problem: warm when only targets changed; with `gains`, on rates scaled per
+    /// cell (a refinement pass, solved afresh).
+    pub(super) fn solve(
+        &mut self,
+        plan: &Plan,
+        gains: Option<&[f64]>,
+    ) -> Result<traycast_solver::Solution, PlanError> {
+        let maps = self.maps.as_ref().expect("maps computed first");
+        let n = maps.cells;
+        let band = bands(plan);
+        let start = start_temps(plan);
+        let rows: Vec<usize> = (0..n).filter(|&i| band[i].is_some()).collect();
+        let build = |g: Option<&[f64]>| -> Result<DwellSolver, PlanError> {
+            let data: Vec<f64> = rows
+                .iter()
+                .flat_map(|&i| (0..maps.configs).map(move |c| (i, c)))
+                .map(|(i, c)| maps.loaded[c * n + i] * g.map_or(1.0, |g| g[i]))
+                .collect();
+            Ok(DwellSolver::new(Rates::from_row_major(
+                rows.len(),
+                maps.configs,
+                &data,
+            )?))
+        };
+        let mut scratch;
+        let solver = match gains {
+            Some(g) => {
+                scratch = build(Some(g))?;
+                &mut scratch
+            }
+            None => {
+                if self.solver.as_ref().map(|(r, _)| r) != Some(&rows) {
+                    self.solver = Some((rows.clone(), build(None)?));
+                }
+                &mut self.solver.as_mut().expect("set").1
+            }
+        };
+        let (lo, hi): (Vec<f64>, Vec<f64>) = rows
+            .iter()
+            .map(|&i| {
+                let (a, b) = band[i].expect("targeted");
+                (a - start[i], b - start[i])
+            })
+            .unzip();
+        let mut spec = Spec::band(lo, hi, maps.configs);
+        spec.weights = rows
+            .iter()
+            .map(|&i| plan.zones[plan.zone_at(i).expect("targeted")].weight)
+            .collect();
+        spec.upper = vec![plan.oven.limit_s.unwrap_or(f64::INFINITY); maps.configs];
+        spec.budget = plan.oven.budget_s;
+        spec.time_penalty = plan.oven.time_penalty;
+        spec.ridge = 0.0;
+        let mut sol = solver.solve(&spec)?;
+        // Hard caps: raise the weight of cells above their cap until the linear prediction respects
+        // it (to 0.05 K) or the weights reach 10⁶× (then the excess is reported).
+        let caps: Vec<Option<f64>> = rows
+            .iter()
+            .map(|&i| {
+                plan.zones[plan.zone_at(i).expect("targeted")]
+                    .cap_c
+                    .map(|c| c - start[i])
+            })
+            .collect();
+        for _ in 0..6 {
+            let mut changed = false;
+            for (r, cap) in caps.iter().enumerate() {
+                if let Some(c) = cap
+                    && sol.achieved[r] > c + 0.05
+                {
+                    spec.weights[r] *= 10.0;
+                    changed = true;
+                }
+            }
+            if !changed {
+                break;
+            }
+            sol = solver.solve(&spec)?;
+        }
+        Ok(sol)
+    }
+}

@@ -1,0 +1,154 @@
+//! What an evaluation reports: per zone, per item, the baseline, the refinement, and the whole.
+
+use super::diagnosis::Diagnosis;
+use super::maps::Provenance;
+use traycast_solver::Status;
+use traycast_thermal::safety::Verdict;
+use traycast_thermal::schedule::Schedule;
+use traycast_thermal::simulate::TimeCourse;
+
+/// One zone's outcome.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ZoneSummary {
+    /// Share of the zone's cells inside the band, linear prediction.
+    pub coverage_linear: f64,
+    /// Share inside the band after the simulated standing time.
+    pub coverage_simulated: f64,
+    /// RMS distance outside the band, K, linear.
+    pub rms_linear: f64,
+    /// RMS distance outside the band, K, simulated (after standing).
+    pub rms_simulated: f64,
+    /// Why it misses, when it does (linear RMS above 1 K).
+    pub diagnosis: Option<Diagnosis>,
+}
+
+/// One food item's outcome.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ItemSummary {
+    /// Coldest cell after standing, °C.
+    pub min: f64,
+    /// Mass-weighted mean after standing, °C.
+    pub mean: f64,
+    /// Warmest cell after standing, °C.
+    pub max: f64,
+    /// Share of the item's zoned cells inside their band after standing (NaN if none is zoned).
+    pub in_band: f64,
+    /// The coldest-cell food-safety verdict; with calibrated maps it is judged on the bounds
+    /// (the coldest cell's lower bound, the warmest cell's upper bound).
+    pub verdict: Verdict,
+    /// Water evaporated, g.
+    pub moisture_g: f64,
+    /// The 95 % spread from the maps' rate uncertainties, when the maps carry them.
+    pub spread: Option<Spread>,
+}
+
+/// Where an item's temperatures after standing lie given the maps' standard errors: each interval
+/// bounds the quantity when every cell is within its own 95 % interval.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Spread {
+    /// Coldest cell, °C (lower, upper).
+    pub coldest: (f64, f64),
+    /// Mean over the cells, °C (lower, upper).
+    pub mean: (f64, f64),
+    /// Warmest cell, °C (lower, upper).
+    pub warmest: (f64, f64),
+    /// The verdict on the nominal temperatures, for comparison.
+    pub nominal: Verdict,
+}
+
+/// Per-cell 95 % bounds of the temperatures after standing, °C (NaN for empty cells).
+#[derive(Clone, Debug, PartialEq)]
+pub struct CellBounds {
+    /// Lower bounds.
+    pub lower: Vec<f64>,
+    /// Upper bounds.
+    pub upper: Vec<f64>,
+}
+
+/// Normal quantile of a two-sided 95 % interval.
+pub const Z95: f64 = 1.959_963_984_540_054;
+
+/// The same tray heated without steering.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Baseline {
+    /// Heating time: until the coldest targeted cell reaches its band minimum (capped by the budget).
+    pub seconds: f64,
+    /// RMS distance outside the bands, K (linear prediction).
+    pub rms_linear: f64,
+    /// Share of targeted cells inside their bands.
+    pub coverage_linear: f64,
+}
+
+/// The outcome of a refinement pass.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Refinement {
+    /// RMS band distance after standing before refining, K.
+    pub rms_before: f64,
+    /// The same after re-solving with the simulation's correction, K.
+    pub rms_after: f64,
+    /// Whether the refined plan was kept (it is only when it helps).
+    pub kept: bool,
+}
+
+/// Everything a front end shows.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Evaluation {
+    /// Seconds per configuration (rounded to the controller's quantum).
+    pub dwell: Vec<f64>,
+    /// Total heating time, s.
+    pub total_s: f64,
+    /// Solver status.
+    pub status: Status,
+    /// Solver KKT residual (relative).
+    pub kkt_residual: f64,
+    /// The schedule run by the simulation.
+    pub schedule: Schedule,
+    /// Linear prediction per cell, °C (NaN for empty cells).
+    pub linear: Vec<f64>,
+    /// Signed distance outside the band per cell, linear, K (NaN for cells without a target).
+    pub error_linear: Vec<f64>,
+    /// The same after the simulated standing time.
+    pub error_simulated: Vec<f64>,
+    /// The simulated time course.
+    pub course: TimeCourse,
+    /// Per zone.
+    pub zones: Vec<ZoneSummary>,
+    /// Per food item.
+    pub items: Vec<ItemSummary>,
+    /// Unsteered comparison.
+    pub baseline: Baseline,
+    /// Where the maps came from.
+    pub provenance: Provenance,
+    /// Things the user should know (replay window, caps, budget).
+    pub warnings: Vec<String>,
+    /// Largest excess over a hard cap in the linear prediction, K (0 when all caps hold).
+    pub cap_excess: f64,
+    /// The refinement pass, if requested.
+    pub refinement: Option<Refinement>,
+    /// Per-cell 95 % bounds after standing, when the maps carry standard errors.
+    pub bounds: Option<CellBounds>,
+    /// The usual cautions.
+    pub cautions: &'static [&'static str],
+}
+
+/// The fast part of an evaluation (see [`Evaluator::quick`]).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Quick {
+    /// Seconds per configuration (rounded to the controller's quantum).
+    pub dwell: Vec<f64>,
+    /// Total heating time, s.
+    pub total_s: f64,
+    /// Solver status.
+    pub status: Status,
+    /// Linear prediction per cell, °C (NaN for empty cells).
+    pub linear: Vec<f64>,
+    /// Signed distance outside the band per cell, linear, K (NaN for cells without a target).
+    pub error_linear: Vec<f64>,
+}
+
+/// Options of an evaluation.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Options {
+    /// Re-solve once with the simulation's correction.
+    pub refine: bool,
+}

@@ -1,0 +1,129 @@
+//! The food-safety side of an evaluation: per-cell 95 % bounds from the maps' standard errors, and
+//! each item's summary with its coldest-point verdict (on the bounds when the maps carry errors).
+
+use super::maps::PlanMaps;
+use super::report::{CellBounds, ItemSummary, Spread, Z95};
+use crate::model::Plan;
+use traycast_thermal::composition::LATENT_VAPORISATION;
+use traycast_thermal::material::Material;
+use traycast_thermal::safety;
+use traycast_thermal::simulate::TimeCourse;
+
+/// Per-cell 95 % bounds after standing from the rates' standard errors.
+///
+/// The linear rise Σ_c r_ic·x_c has the standard deviation √(Σ_c (σ_ic·x_c)²) when the rate errors
+/// are independent; its relative size is applied to the energy the cell absorbed over the whole
+/// course (its enthalpy gain plus the water it evaporated), and the bounds are read back through
+/// the food's enthalpy curve: a cell whose energy may fall short ends its lower bound on the thaw
+/// plateau rather than below it, and a boiling cell first loses the energy that only evaporated
+/// water. Conduction between cells (which averages errors out) is neglected, which widens the
+/// bounds; upper bounds stop at 100 °C.
+pub fn cell_bounds(
+    plan: &Plan,
+    maps: &PlanMaps,
+    se: &[f64],
+    dwell: &[f64],
+    mats: &[Material],
+    course: &TimeCourse,
+) -> CellBounds {
+    let n = maps.cells;
+    let cell_m = plan.tray.cell_mm / 1000.0;
+    let mut lower = vec![f64::NAN; n];
+    let mut upper = vec![f64::NAN; n];
+    for i in 0..n {
+        let Some(k) = plan.item_at(i) else { continue };
+        let (mut rise, mut var) = (0.0, 0.0);
+        for (c, x) in dwell.iter().enumerate() {
+            rise += maps.loaded[c * n + i] * x;
+            var += (se[c * n + i] * x).powi(2);
+        }
+        let rel = if rise > 0.0 { var.sqrt() / rise } else { 0.0 };
+        let m = &mats[k];
+        let after = course.after_standing[i];
+        let mass = m.density * cell_m * cell_m * plan.items[k].thickness_mm / 1000.0;
+        let evaporated = LATENT_VAPORISATION * course.moisture_loss[i] / mass;
+        let h = m.enthalpy(after);
+        let absorbed = h - m.enthalpy(plan.items[k].start_c) + evaporated;
+        let de = Z95 * rel * absorbed.abs();
+        lower[i] = m.state((h + evaporated - de).min(h), &mut 0).0.min(after);
+        upper[i] = m.state(h + de, &mut 0).0.clamp(after, 100.0f64.max(after));
+    }
+    CellBounds { lower, upper }
+}
+
+/// Each item's outcome after standing: its coldest, mean and warmest temperatures, the share of its
+/// zoned cells in band, and the verdict (judged on `bounds` when the maps carry errors).
+pub(super) fn item_summaries(
+    plan: &Plan,
+    course: &TimeCourse,
+    error_simulated: &[f64],
+    bounds: Option<&CellBounds>,
+) -> Vec<ItemSummary> {
+    let n = plan.tray.cells();
+    let last = course.times.len() - 1;
+    (0..plan.items.len())
+        .map(|k| {
+            let cells_k: Vec<usize> = (0..n).filter(|&i| plan.item_at(i) == Some(k)).collect();
+            let temps: Vec<f64> = cells_k.iter().map(|&i| course.after_standing[i]).collect();
+            let zoned: Vec<f64> = cells_k
+                .iter()
+                .map(|&i| error_simulated[i])
+                .filter(|v| v.is_finite())
+                .collect();
+            let cat = plan.catalogue_food(k).expect("validated");
+            let temps = if temps.is_empty() {
+                vec![f64::NAN]
+            } else {
+                temps
+            };
+            let nominal = safety::verdict(cat.safety, &temps, plan.oven.standing_s);
+            let (mean, stood) = (course.items[k].mean[last], plan.oven.standing_s);
+            let (verdict, spread) = match bounds {
+                Some(b) if !cells_k.is_empty() => {
+                    let lo: Vec<f64> = cells_k.iter().map(|&i| b.lower[i]).collect();
+                    let hi: Vec<f64> = cells_k.iter().map(|&i| b.upper[i]).collect();
+                    let fold =
+                        |v: &[f64], f: fn(f64, f64) -> f64, start| v.iter().copied().fold(start, f);
+                    let shift = |v: &[f64]| {
+                        cells_k
+                            .iter()
+                            .zip(v)
+                            .map(|(&i, x)| x - course.after_standing[i])
+                            .sum::<f64>()
+                            / cells_k.len() as f64
+                    };
+                    let spread = Spread {
+                        coldest: (
+                            fold(&lo, f64::min, f64::INFINITY),
+                            fold(&hi, f64::min, f64::INFINITY),
+                        ),
+                        mean: (mean + shift(&lo), mean + shift(&hi)),
+                        warmest: (
+                            fold(&lo, f64::max, f64::NEG_INFINITY),
+                            fold(&hi, f64::max, f64::NEG_INFINITY),
+                        ),
+                        nominal,
+                    };
+                    (
+                        safety::verdict_within(cat.safety, &lo, &hi, stood),
+                        Some(spread),
+                    )
+                }
+                _ => (nominal, None),
+            };
+            ItemSummary {
+                min: course.items[k].min[last],
+                mean: course.items[k].mean[last],
+                max: course.items[k].max[last],
+                in_band: if zoned.is_empty() {
+                    f64::NAN
+                } else {
+                    zoned.iter().filter(|v| **v == 0.0).count() as f64 / zoned.len() as f64
+                },
+                verdict,
+                moisture_g: course.item_moisture_loss[k] * 1000.0,
+                spread,
+            }
+        })
+        .collect()
+}
