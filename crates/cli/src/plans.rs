@@ -47,17 +47,9 @@ pub fn write(path: &Path, text: &str) -> Result<(), CliError> {
 }
 
 pub fn in_file(path: &Path) -> impl Fn(PlanError) -> CliError + '_ {
-    move |e| {
-        let line = e
-            .place
-            .strip_prefix("line ")
-            .and_then(|l| l.parse().ok())
-            .unwrap_or(0);
-        if line > 0 {
-            CliError::at(path, line, 0, &e.message)
-        } else {
-            CliError::at(path, 0, 0, &e)
-        }
+    move |e| match e.place.line_number() {
+        Some((line, column)) => CliError::at(path, line, column.unwrap_or(0), &e.message),
+        None => CliError::at(path, 0, 0, &e),
     }
 }
 

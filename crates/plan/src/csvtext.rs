@@ -5,7 +5,7 @@
 //! record at a time, whatever its length, so a caller can bound what it keeps ([`MAX_COMMENTS`]
 //! bounds the metadata).
 
-use crate::error::PlanError;
+use crate::error::{Place, PlanError};
 use std::io::Read;
 
 /// Most comment lines a file may carry (metadata is kept in memory; records are not).
@@ -71,7 +71,7 @@ fn reader(text: &str) -> csv::Reader<Records<'_>> {
 
 fn csv_error(e: csv::Error) -> PlanError {
     PlanError::new(
-        format!("line {}", e.position().map_or(0, |p| p.line())),
+        Place::line(e.position().map_or(0, |p| p.line() as usize)),
         e.to_string(),
     )
 }
@@ -90,7 +90,7 @@ impl<'a> Sheet<'a> {
             };
             if meta.len() + tags.len() >= MAX_COMMENTS {
                 return Err(PlanError::new(
-                    format!("line {}", k + 1),
+                    Place::line(k + 1),
                     format!("more than {MAX_COMMENTS} comment lines; this is not one of our files"),
                 ));
             }
@@ -147,7 +147,7 @@ impl<'a> Sheet<'a> {
                 && rest.trim() != version
             {
                 return Err(PlanError::new(
-                    format!("line {line}"),
+                    Place::line(*line),
                     format!(
                         "format '{tag}' is not supported (this version reads '{format} {version}')"
                     ),
@@ -160,7 +160,7 @@ impl<'a> Sheet<'a> {
 
 /// "line N" as an error place.
 pub(crate) fn at_line(line: usize, message: impl Into<String>) -> PlanError {
-    PlanError::new(format!("line {line}"), message)
+    PlanError::new(Place::line(line), message)
 }
 
 #[cfg(test)]
@@ -204,6 +204,6 @@ mod tests {
     fn too_many_comments_are_refused() {
         let text = "# c\n".repeat(MAX_COMMENTS + 1);
         let err = Sheet::parse(&text).err().unwrap();
-        assert_eq!(err.place, format!("line {}", MAX_COMMENTS + 1));
+        assert_eq!(err.place, Place::line(MAX_COMMENTS + 1));
     }
 }

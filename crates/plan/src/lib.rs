@@ -44,4 +44,4 @@ pub mod runs;
 pub mod summary;
 pub mod wire;
 
-pub use error::PlanError;
+pub use error::{Place, PlanError};

@@ -1,7 +1,7 @@
 //! The plan a user edits: a tray of cells, the food items placed on it, zones with target bands,
 //! oven settings, and where the heating maps come from.
 
-use crate::error::PlanError;
+use crate::error::{Place, PlanError};
 use traycast_thermal::catalogue::{self, CatalogueFood};
 
 /// Largest tray side, in cells (keeps links and solves bounded).
@@ -123,7 +123,7 @@ pub struct Plan {
     pub maps: MapSource,
 }
 
-fn check(ok: bool, place: impl Into<String>, msg: impl Into<String>) -> Result<(), PlanError> {
+fn check(ok: bool, place: impl Into<Place>, msg: impl Into<String>) -> Result<(), PlanError> {
     if ok {
         Ok(())
     } else {

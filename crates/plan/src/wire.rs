@@ -4,7 +4,7 @@
 //! These types are the boundary: versioned, separate from [`crate::model`], and every field is
 //! validated on the way in. Untrusted input becomes a [`PlanError`], never a panic.
 
-use crate::error::PlanError;
+use crate::error::{Place, PlanError};
 use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
 use base64::Engine;
 use serde::{Deserialize, Serialize};
@@ -314,8 +314,13 @@ pub fn to_json(plan: &Plan) -> String {
 /// Reads a plan JSON file; the error names the line or the field.
 pub fn from_json(text: &str) -> Result<Plan, PlanError> {
     crate::error::check_length("plan file", text, MAX_PLAN_JSON)?;
-    let doc: PlanDoc = serde_json::from_str(text)
-        .map_err(|e| PlanError::new(format!("line {}", e.line()), e.to_string()))?;
+    let doc: PlanDoc = serde_json::from_str(text).map_err(|e| {
+        let place = crate::error::Place::Line {
+            line: e.line(),
+            column: Some(e.column()),
+        };
+        PlanError::new(place, e.to_string())
+    })?;
     Plan::try_from(doc)
 }
 
@@ -331,7 +336,7 @@ pub fn to_link(plan: &Plan) -> String {
 
 /// Decodes a share-link payload (with or without a leading '#'). Bounded and fully validated.
 pub fn from_link(link: &str) -> Result<Plan, PlanError> {
-    let at = |m: String| PlanError::new("link", m);
+    let at = |m: String| PlanError::new(Place::Link(None), m);
     let link = link.trim().trim_start_matches('#');
     if link.len() > MAX_LINK {
         return Err(at(format!(
@@ -366,7 +371,7 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
     })?;
     let doc: PlanDoc = postcard::from_bytes(&bytes)
         .map_err(|e| at(format!("holds data this version cannot read ({e})")))?;
-    Plan::try_from(doc).map_err(|e| PlanError::new(format!("link: {}", e.place), e.message))
+    Plan::try_from(doc).map_err(|e| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message))
 }
 
 /// The schedule as CSV a controller can run: step, configuration, start and duration in seconds,

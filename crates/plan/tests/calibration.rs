@@ -3,6 +3,7 @@
 //! (with sensor lag, a thaw plateau, the approach to boiling, noise and spikes) for the estimator
 //! and its stated errors over many seeds, and malformed files for the line-numbered refusals.
 
+use traycast_plan::Place;
 use traycast_plan::calibrate::{self, NoteKind, Settings};
 use traycast_plan::evaluate::{self, Options};
 use traycast_plan::library::RateBasis;
@@ -396,7 +397,7 @@ fn malformed_runs_are_refused_naming_the_line() {
         let e = HeatingRuns::parse(&with_line(&good, line, new), &plan, ReadOptions::default())
             .unwrap_err();
         assert!(
-            e.place == format!("line {line}") && e.message.contains(words),
+            e.place == Place::line(line) && e.message.contains(words),
             "{e} should be at line {line} and say '{words}'"
         );
     }
@@ -420,7 +421,7 @@ fn malformed_runs_are_refused_naming_the_line() {
         .position(|l| l.starts_with("r1,1,0,2,2,"))
         .unwrap()
         + 1;
-    assert_eq!(e.place, format!("line {first}"));
+    assert_eq!(e.place, Place::line(first));
     // A run shorter than needed: only the first 3 readings of every series of r3.
     let short: String = good
         .lines()
@@ -490,7 +491,10 @@ fn probe_positions_in_millimetres_map_to_cells() {
     }
     let off = with_line(&mm, 4, "r0,0,0,130,10,5.0");
     let e = HeatingRuns::parse(&off, &plan, ReadOptions::default()).unwrap_err();
-    assert!(e.place == "line 4" && e.message.contains("off the"), "{e}");
+    assert!(
+        e.place == Place::line(4) && e.message.contains("off the"),
+        "{e}"
+    );
 }
 
 #[test]

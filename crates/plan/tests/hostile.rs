@@ -3,6 +3,7 @@
 //! number that is not finite reaches a summary, map, verdict or export.
 
 use proptest::prelude::*;
+use traycast_plan::Place;
 use traycast_plan::evaluate::{self, Evaluation, Options};
 use traycast_plan::library::{MAX_LIBRARY_VALUES, MapLibrary};
 use traycast_plan::model::{FoodItem, Plan, Sequencing, Zone};
@@ -177,7 +178,7 @@ fn absurd_times_are_refused_at_their_line() {
     let mut text = runs_at(&[("10".into(), "10".into())]);
     text = text.replacen("a,0,4,10,10", "a,0,1e308,10,10", 1);
     let e = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap_err();
-    assert_eq!(e.place, "line 5");
+    assert_eq!(e.place, Place::line(5));
     assert!(e.message.contains(&format!("{MAX_TIME_S}")), "{e}");
 }
 
@@ -193,7 +194,7 @@ fn library_sizes_are_checked_before_anything_is_allocated() {
             r#"{{"format":"traycast-maps","version":1,"name":"x","width":{w},"height":{h},"cell_mm":20,"configs":{c},"units":"K/s","loads":[]}}"#
         );
         let e = MapLibrary::from_json(&json).unwrap_err();
-        assert_eq!(e.place, "library", "{e}");
+        assert_eq!(e.place, Place::from("library"), "{e}");
     }
     // Many loads of a full-size tray: refused by the value count, naming the line that passes it.
     let mut csv = String::from(
@@ -203,7 +204,7 @@ fn library_sizes_are_checked_before_anything_is_allocated() {
         csv.push_str(&format!("load{k},0,0,0,meat,0.1\n"));
     }
     let e = MapLibrary::from_csv(&csv).unwrap_err();
-    assert_eq!(e.place, "line 7", "{e}");
+    assert_eq!(e.place, Place::line(7), "{e}");
     assert!(e.message.contains(&MAX_LIBRARY_VALUES.to_string()), "{e}");
 }
 
@@ -281,7 +282,7 @@ proptest! {
         prop_assume!(plan.validate().is_ok());
         match evaluate::evaluate(&plan, None, Options::default()) {
             Ok(e) => assert_all_finite(&plan, &e),
-            Err(e) => prop_assert!(!e.message.is_empty() && !e.place.is_empty(), "{e}"),
+            Err(e) => prop_assert!(!e.message.is_empty() && !e.place.to_string().is_empty(), "{e}"),
         }
     }
 }

@@ -2,6 +2,7 @@
 //! agreement with a direct solve, demos against the unsteered baseline.
 
 use proptest::prelude::*;
+use traycast_plan::Place;
 use traycast_plan::evaluate::{self, Evaluator, Options};
 use traycast_plan::library::{MapLibrary, RateBasis, RecordedLoad, Uncertainty, Window};
 use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
@@ -430,7 +431,10 @@ fn field_model_is_deterministic_and_follows_the_load() {
 fn plan_validation_names_the_field() {
     let mut p = demos::demo("side-by-side").unwrap();
     p.zones[1].max_c = 10.0;
-    assert_eq!(p.validate().unwrap_err().place, "zones[1].max_c");
+    assert_eq!(
+        p.validate().unwrap_err().place,
+        Place::from("zones[1].max_c")
+    );
     let mut p = demos::demo("side-by-side").unwrap();
     p.items[0].food = "unobtainium".into();
     assert!(

@@ -2,7 +2,7 @@
 //! thawed maps) and the warnings about cells it drove outside the model.
 
 use super::maps::PlanMaps;
-use crate::error::PlanError;
+use crate::error::{Place, PlanError};
 use crate::model::Plan;
 use traycast_thermal::ThermalError;
 use traycast_thermal::material::Material;
@@ -46,11 +46,10 @@ pub fn time_course(
     };
     simulate::simulate(&load, &sim_maps, schedule, settings).map_err(|e| match e {
         ThermalError::Diverged { cell, time_s } => PlanError::new(
-            format!(
-                "simulation, cell row {}, col {}",
-                cell / plan.tray.width,
-                cell % plan.tray.width
-            ),
+            Place::Cell {
+                row: cell / plan.tray.width,
+                col: cell % plan.tray.width,
+            },
             format!(
                 "the temperature of '{}' stopped being a number at {time_s:.1} s: the plan drives the food past what the model covers; reduce the power, the time or the thickness",
                 plan.item_at(cell)
