@@ -79,13 +79,18 @@ pub(crate) fn from_gradient(grad: &[f64], x: &[f64], spec: &Spec, scales: &[f64]
     };
     let binding = budget.is_finite() && total >= budget * (1.0 - 1e-9);
     let nu = if binding {
-        // The worst violation is convex in ν: ternary search on [0, max |g|].
+        // The worst violation is convex in ν: ternary search on [0, max |g|], run until the
+        // bracket stops shrinking. Gradients can span many orders of magnitude (one column's rates
+        // 1e78 times another's): a fixed count of steps would stop far from the multiplier.
         let (mut a, mut b) = (
             0.0,
             grad.iter().fold(0.0f64, |m, g| m.max(g.abs())) * 2.0 + 1.0,
         );
-        for _ in 0..200 {
+        for _ in 0..4000 {
             let (m1, m2) = (a + (b - a) / 3.0, b - (b - a) / 3.0);
+            if !(m1 > a && m2 < b && m1 < m2) {
+                break;
+            }
             if worst(m1) <= worst(m2) {
                 b = m2;
             } else {

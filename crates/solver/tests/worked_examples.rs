@@ -168,3 +168,22 @@ fn values_near_the_float_limits_are_refused() {
     let err = Rates::from_row_major(3, 16_000, &[]).unwrap_err();
     assert!(matches!(err, InputError::TooLarge { .. }), "{err:?}");
 }
+
+/// Found by the `nnls` fuzz target: one column's rate is 7.6e78 times the others', so the
+/// gradients span 80 orders of magnitude. The solve was right (budget binding, ν = 1.125), but the
+/// certificate's search for the budget multiplier stopped after a fixed number of steps far from
+/// it and reported a violation of 0.17. It now searches until its bracket stops shrinking.
+#[test]
+fn certificate_finds_the_budget_multiplier_across_80_orders_of_magnitude() {
+    use traycast_solver::{DwellSolver, Rates, Spec, Status, kkt};
+    let mut a = vec![0.0, 7.55600144553228e78, 1.125, 5.0, 0.0, 0.5];
+    a.extend([0.5; 18]);
+    let rates = Rates::from_row_major(12, 2, &a).unwrap();
+    let mut spec = Spec::band(vec![0.5; 12], vec![1.0; 12], 2);
+    spec.budget = Some(0.5);
+    let sol = DwellSolver::new(rates.clone()).solve(&spec).unwrap();
+    assert_eq!(sol.status, Status::BudgetBinding);
+    let k = kkt::check(&rates, &spec, &sol.dwell);
+    assert!(k.stationarity < 1e-12, "{k:?}");
+    assert!((k.budget_multiplier - 1.125).abs() < 1e-9, "{k:?}");
+}
