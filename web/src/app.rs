@@ -107,6 +107,10 @@ pub fn App() -> impl IntoView {
     let brush = RwSignal::new(1usize);
     let rect = RwSignal::new(false);
     let library: RwSignal<Option<MapLibrary>> = RwSignal::new(None);
+    // Bumped whenever `library` is replaced: the evaluator takes the new one (and hashes it) once,
+    // instead of being handed, and comparing, the library on every stroke.
+    let library_rev = RwSignal::new(0u64);
+    let evaluator_rev = StoredValue::new(0u64);
     // The last calibration: its quality report and per-probe table (CSV).
     let quality: RwSignal<Option<(QualityReport, String)>> = RwSignal::new(None);
     let runs_in_f = RwSignal::new(false);
@@ -136,11 +140,17 @@ pub fn App() -> impl IntoView {
     // time course and verdicts as soon as the strokes pause (its own, larger budget).
     Effect::new(move |_| {
         let p = plan.get();
-        let lib = library.get();
+        let rev = library_rev.get();
         surface::pending();
         mark("tc-quick-start");
         let mut q = None;
-        evaluator.update_value(|ev| q = Some(ev.quick(&p, lib.as_ref())));
+        evaluator.update_value(|ev| {
+            if evaluator_rev.get_value() != rev {
+                ev.set_library(library.get_untracked());
+                evaluator_rev.set_value(rev);
+            }
+            q = Some(ev.quick(&p));
+        });
         measure("tc-quick", "tc-quick-start");
         match q.expect("evaluated") {
             Ok(q) => quick.set(Some(q)),
@@ -153,12 +163,9 @@ pub fn App() -> impl IntoView {
         link_len.set(storage::set_fragment(&p));
         let full = gloo::timers::callback::Timeout::new(30, move || {
             let p = plan.get_untracked();
-            let lib = library.get_untracked();
             mark("tc-eval-start");
             let mut result = None;
-            evaluator.update_value(|ev| {
-                result = Some(ev.evaluate(&p, lib.as_ref(), Options::default()))
-            });
+            evaluator.update_value(|ev| result = Some(ev.evaluate(&p, Options::default())));
             let result = result.expect("evaluated").map_err(|e| e.to_string());
             measure("tc-solve-and-simulate", "tc-eval-start");
             surface::publish(&p, result.as_ref().ok());
@@ -471,6 +478,7 @@ pub fn App() -> impl IntoView {
             Ok(lib) => {
                 let (name, configs) = (lib.name.clone(), lib.configs);
                 library.set(Some(lib));
+                library_rev.update(|r| *r += 1);
                 edit(&|p| {
                     p.maps = MapSource::Library { name: name.clone() };
                     p.oven.configs = configs;
@@ -494,6 +502,7 @@ pub fn App() -> impl IntoView {
                     let name = cal.library.name.clone();
                     let runs = cal.report.runs;
                     library.set(Some(cal.library));
+                    library_rev.update(|r| *r += 1);
                     quality.set(Some((cal.report, table)));
                     edit(&|p| p.maps = MapSource::Library { name: name.clone() });
                     notice.set(Some(format!("Calibrated '{name}' from {runs} runs on this tray; the quality report is under the outcome.")));

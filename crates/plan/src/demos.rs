@@ -114,3 +114,44 @@ pub fn demo(name: &str) -> Option<Plan> {
         _ => return None,
     })
 }
+
+/// The benchmark tray (illustrative): 48 × 32 cells of 7 mm, four foods in quadrants, two
+/// targets in a checkerboard, 96 configurations. What `cargo xtask bench-web` and the plan
+/// crate's benchmarks measure.
+pub fn benchmark_tray() -> Plan {
+    let (w, h) = (48, 32);
+    let mut p = Plan::blank(w, h, 7.0);
+    p.name = "Benchmark tray 48 × 32, 96 configurations (illustrative)".into();
+    p.oven.configs = 96;
+    p.items = ["chicken-breast", "rice", "broccoli", "mashed-potato"]
+        .iter()
+        .map(|f| FoodItem {
+            name: f.to_string(),
+            food: f.to_string(),
+            thickness_mm: 20.0,
+            start_c: 4.0,
+        })
+        .collect();
+    p.zones = vec![
+        Zone {
+            name: "hot".into(),
+            min_c: 75.0,
+            max_c: 85.0,
+            weight: 1.0,
+            cap_c: None,
+        },
+        Zone {
+            name: "warm".into(),
+            min_c: 60.0,
+            max_c: 70.0,
+            weight: 1.0,
+            cap_c: None,
+        },
+    ];
+    for i in 0..w * h {
+        let (r, c) = (i / w, i % w);
+        p.food[i] = 1 + (c >= w / 2) as u8 + 2 * (r >= h / 2) as u8;
+        p.zone[i] = 1 + ((r + c) % 2) as u8;
+    }
+    p
+}

@@ -36,6 +36,7 @@ pub mod demos;
 mod error;
 pub mod evaluate;
 pub mod field;
+mod fingerprint;
 pub mod library;
 pub mod model;
 pub mod regression;

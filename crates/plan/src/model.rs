@@ -263,23 +263,27 @@ impl Plan {
                 )?;
             }
         }
+        // Per cell: the place and message are only formatted for the cell that fails.
         for (i, (&f, &z)) in self.food.iter().zip(&self.zone).enumerate() {
-            let (r, c) = (i / t.width, i % t.width);
-            check(
-                f as usize <= self.items.len(),
-                format!("food[row {r}, col {c}]"),
-                format!("names item {f}, there are {}", self.items.len()),
-            )?;
-            check(
-                z as usize <= self.zones.len(),
-                format!("zone[row {r}, col {c}]"),
-                format!("names zone {z}, there are {}", self.zones.len()),
-            )?;
-            check(
-                z == 0 || f > 0,
-                format!("zone[row {r}, col {c}]"),
-                "a target is painted on an empty cell; paint food there first",
-            )?;
+            let at = |grid: &str| format!("{grid}[row {}, col {}]", i / t.width, i % t.width);
+            if f as usize > self.items.len() {
+                return Err(PlanError::new(
+                    at("food"),
+                    format!("names item {f}, there are {}", self.items.len()),
+                ));
+            }
+            if z as usize > self.zones.len() {
+                return Err(PlanError::new(
+                    at("zone"),
+                    format!("names zone {z}, there are {}", self.zones.len()),
+                ));
+            }
+            if z > 0 && f == 0 {
+                return Err(PlanError::new(
+                    at("zone"),
+                    "a target is painted on an empty cell; paint food there first",
+                ));
+            }
         }
         let o = &self.oven;
         finite_in(

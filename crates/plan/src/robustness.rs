@@ -60,13 +60,13 @@ pub fn robustness(
     library: Option<&MapLibrary>,
     dwell: &[f64],
 ) -> Result<Robustness, PlanError> {
-    let mut ev = Evaluator::new();
-    let maps = ev.maps(plan, library)?.clone();
+    let mut ev = Evaluator::with_library(library.cloned());
+    let maps = ev.maps(plan)?.clone();
     let nominal_rms = band_rms(plan, &linear_prediction(plan, &maps, dwell));
     let mut shifts = Vec::new();
     for (dx, dy) in [(1, 0), (-1, 0), (0, 1), (0, -1)] {
         let p = shifted(plan, dx, dy);
-        let maps = ev.maps(&p, library)?.clone();
+        let maps = ev.maps(&p)?.clone();
         shifts.push((dx, dy, band_rms(&p, &linear_prediction(&p, &maps, dwell))));
     }
     let mut sorted: Vec<f64> = shifts.iter().map(|s| s.2).collect();

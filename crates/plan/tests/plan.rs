@@ -273,6 +273,55 @@ fn load_matching_reports_the_replay_window() {
     assert_eq!(lib.best_match(&other).unwrap().window, Window::Outside);
 }
 
+/// The plan names its library: a library of another name is refused, never solved on silently;
+/// the evaluator's caches follow a library replaced by one with other content.
+#[test]
+fn a_plan_is_only_solved_on_the_library_it_names() {
+    let lib = tiny_library();
+    let mut plan = Plan::blank(3, 2, 30.0);
+    plan.items = vec![FoodItem {
+        name: "Chicken".into(),
+        food: "chicken-breast".into(),
+        thickness_mm: 20.0,
+        start_c: 4.0,
+    }];
+    plan.food = vec![1, 1, 0, 1, 1, 0];
+    plan.zones = vec![Zone {
+        name: "hot".into(),
+        min_c: 60.0,
+        max_c: 70.0,
+        weight: 1.0,
+        cap_c: None,
+    }];
+    plan.zone = vec![1, 1, 0, 1, 1, 0];
+    plan.oven.configs = 2;
+    plan.maps = MapSource::Library {
+        name: "kitchen".into(),
+    };
+    let on_kitchen = evaluate::evaluate(&plan, Some(&lib), Options::default()).unwrap();
+    let mut other = lib.clone();
+    other.name = "bench oven 2".into();
+    let e = evaluate::evaluate(&plan, Some(&other), Options::default()).unwrap_err();
+    assert_eq!(e.place, Place::from("maps.library"), "{e}");
+    assert!(
+        e.message.contains("kitchen") && e.message.contains("bench oven 2"),
+        "{e}"
+    );
+    // Same name, other content: the evaluator drops its maps and uses the new rates.
+    let mut ev = Evaluator::with_library(Some(lib.clone()));
+    let first = ev.quick(&plan).unwrap();
+    let shown = |v: &[f64]| format!("{v:?}");
+    assert_eq!(shown(&first.linear), shown(&on_kitchen.linear));
+    let mut hotter = lib.clone();
+    hotter.loads[0].rates.iter_mut().for_each(|r| *r *= 2.0);
+    assert_ne!(hotter.content_hash(), lib.content_hash());
+    ev.set_library(Some(hotter.clone()));
+    let second = ev.quick(&plan).unwrap();
+    let fresh = Evaluator::with_library(Some(hotter)).quick(&plan).unwrap();
+    assert_eq!(shown(&second.linear), shown(&fresh.linear));
+    assert_ne!(second.dwell, first.dwell);
+}
+
 /// IEC 60705 water-load method: 1000 g of water, P ≈ 4187·ΔT/t. The field model scales every
 /// configuration so this load absorbs the rated power; a simulated run on an approximate disc of
 /// water cells must read back the rated power within 5 % (the grid only approximates the disc).
@@ -396,7 +445,7 @@ fn every_demo_evaluates_and_reports_verdicts() {
     let mut ev = Evaluator::new();
     for name in demos::DEMOS {
         let plan = demos::demo(name).unwrap();
-        let eval = ev.evaluate(&plan, None, Options { refine: true }).unwrap();
+        let eval = ev.evaluate(&plan, Options { refine: true }).unwrap();
         assert_eq!(eval.items.len(), plan.items.len());
         assert!(eval.total_s <= plan.oven.budget_s.unwrap() + 1e-9);
         assert!(
@@ -453,8 +502,8 @@ fn plan_validation_names_the_field() {
 fn quick_path_matches_the_full_evaluation() {
     let plan = demos::demo("lunch-tray").unwrap();
     let mut ev = Evaluator::new();
-    let quick = ev.quick(&plan, None).unwrap();
-    let full = ev.evaluate(&plan, None, Options::default()).unwrap();
+    let quick = ev.quick(&plan).unwrap();
+    let full = ev.evaluate(&plan, Options::default()).unwrap();
     assert_eq!(quick.dwell, full.dwell);
     assert_eq!(format!("{:?}", quick.linear), format!("{:?}", full.linear));
     assert_eq!(

@@ -5,47 +5,8 @@ use crate::run::root;
 use crate::web;
 use std::time::Instant;
 use traycast_plan::evaluate::{Evaluator, Options};
-use traycast_plan::model::{FoodItem, Plan, Zone};
+use traycast_plan::model::Plan;
 use traycast_plan::wire;
-
-/// The benchmark plan: four foods in quadrants, two targets, 96 configurations.
-fn plan() -> Plan {
-    let (w, h) = (48, 32);
-    let mut p = Plan::blank(w, h, 7.0);
-    p.name = "Benchmark tray 48 × 32, 96 configurations (illustrative)".into();
-    p.oven.configs = 96;
-    p.items = ["chicken-breast", "rice", "broccoli", "mashed-potato"]
-        .iter()
-        .map(|f| FoodItem {
-            name: f.to_string(),
-            food: f.to_string(),
-            thickness_mm: 20.0,
-            start_c: 4.0,
-        })
-        .collect();
-    p.zones = vec![
-        Zone {
-            name: "hot".into(),
-            min_c: 75.0,
-            max_c: 85.0,
-            weight: 1.0,
-            cap_c: None,
-        },
-        Zone {
-            name: "warm".into(),
-            min_c: 60.0,
-            max_c: 70.0,
-            weight: 1.0,
-            cap_c: None,
-        },
-    ];
-    for i in 0..w * h {
-        let (r, c) = (i / w, i % w);
-        p.food[i] = 1 + (c >= w / 2) as u8 + 2 * (r >= h / 2) as u8;
-        p.zone[i] = 1 + ((r + c) % 2) as u8;
-    }
-    p
-}
 
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(f64::total_cmp);
@@ -55,10 +16,10 @@ fn median(mut v: Vec<f64>) -> f64 {
 /// Runs the report.
 pub fn run() -> Result<(), String> {
     web::build()?;
-    let p = plan();
+    let p = traycast_plan::demos::benchmark_tray();
     // Native reference: the same kind of edit (a target change) evaluated warm, 200 times.
     let mut ev = Evaluator::new();
-    ev.evaluate(&p, None, Options::default())
+    ev.evaluate(&p, Options::default())
         .map_err(|e| e.to_string())?;
     // The same 200 target edits for both paths; median milliseconds.
     let mut timed =
@@ -75,12 +36,11 @@ pub fn run() -> Result<(), String> {
             Ok(median(times))
         };
     let native = timed(&mut |ev, q| {
-        ev.evaluate(q, None, Options::default())
+        ev.evaluate(q, Options::default())
             .map(|_| ())
             .map_err(|e| e.to_string())
     })?;
-    let native_quick =
-        timed(&mut |ev, q| ev.quick(q, None).map(|_| ()).map_err(|e| e.to_string()))?;
+    let native_quick = timed(&mut |ev, q| ev.quick(q).map(|_| ()).map_err(|e| e.to_string()))?;
     let addr = web::serve_background(root().join("dist"), 0)?;
     let url = format!("{addr}#{}", wire::to_link(&p));
     let out = std::process::Command::new("node")

@@ -1,33 +1,39 @@
 //! The unsteered baseline: the same tray heated with every configuration alike, for comparison.
 
 use super::maps::PlanMaps;
-use super::problem::{band_distance, bands, rms, start_temps};
+use super::prepared::Prepared;
+use super::problem::{band_distance, rms};
 use super::report::Baseline;
 use crate::model::Plan;
 
 /// No steering: the average of all configurations (what a turntable-less oven without field
 /// control approximates), run until the coldest targeted cell reaches its band minimum.
 pub fn baseline(plan: &Plan, maps: &PlanMaps) -> Baseline {
+    of(plan, &Prepared::new(plan), maps)
+}
+
+/// [`baseline`] from the plan's prepared facts.
+pub(super) fn of(plan: &Plan, prep: &Prepared, maps: &PlanMaps) -> Baseline {
     let n = maps.cells;
-    let band = bands(plan);
-    let start = start_temps(plan);
-    let avg: Vec<f64> = (0..n)
-        .map(|i| {
-            (0..maps.configs)
-                .map(|c| maps.loaded[c * n + i])
-                .sum::<f64>()
-                / maps.configs as f64
-        })
-        .collect();
-    let targeted: Vec<usize> = (0..n).filter(|&i| band[i].is_some()).collect();
+    let (band, start, targeted) = (&prep.band, &prep.start, &prep.rows);
+    // Mean rate over the configurations, for the targeted cells only, map by map.
+    let mut avg = vec![0.0; targeted.len()];
+    for c in 0..maps.configs {
+        let map = &maps.loaded[c * n..(c + 1) * n];
+        for (a, &i) in avg.iter_mut().zip(targeted) {
+            *a += map[i];
+        }
+    }
+    avg.iter_mut().for_each(|a| *a /= maps.configs as f64);
     let need = targeted
         .iter()
-        .map(|&i| {
+        .zip(&avg)
+        .map(|(&i, &rate)| {
             let rise = band[i].expect("targeted").0 - start[i];
             if rise <= 0.0 {
                 0.0
-            } else if avg[i] > 0.0 {
-                rise / avg[i]
+            } else if rate > 0.0 {
+                rise / rate
             } else {
                 f64::INFINITY
             }
@@ -37,9 +43,10 @@ pub fn baseline(plan: &Plan, maps: &PlanMaps) -> Baseline {
     let seconds = need.min(cap);
     let errs: Vec<f64> = targeted
         .iter()
-        .map(|&i| {
+        .zip(&avg)
+        .map(|(&i, &rate)| {
             let (a, b) = band[i].expect("targeted");
-            band_distance(start[i] + avg[i] * seconds, a, b)
+            band_distance(start[i] + rate * seconds, a, b)
         })
         .collect();
     Baseline {

@@ -2,6 +2,7 @@
 //! thawed maps) and the warnings about cells it drove outside the model.
 
 use super::maps::PlanMaps;
+use super::prepared::Prepared;
 use crate::error::{Place, PlanError};
 use crate::model::Plan;
 use traycast_thermal::ThermalError;
@@ -62,12 +63,9 @@ pub fn time_course(
 
 /// Warnings about cells the time course drove outside the model: boiled dry, or past
 /// [`simulate::MODEL_LIMIT_C`] (dried food scorching). One line per item.
-pub(super) fn course_warnings(plan: &Plan, course: &TimeCourse) -> Vec<String> {
+pub(super) fn course_warnings(plan: &Plan, prep: &Prepared, course: &TimeCourse) -> Vec<String> {
     let mut out = Vec::new();
-    for (k, item) in plan.items.iter().enumerate() {
-        let cells: Vec<usize> = (0..course.peak.len())
-            .filter(|&i| plan.item_at(i) == Some(k))
-            .collect();
+    for (item, cells) in plan.items.iter().zip(&prep.item_cells) {
         let dry = cells.iter().filter(|&&i| course.boiled_dry[i]).count();
         if dry > 0 {
             out.push(format!(

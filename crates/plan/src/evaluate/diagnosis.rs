@@ -2,6 +2,7 @@
 //! simulated, with the diagnosis that names the physics or the setting that stops it.
 
 use super::Evaluator;
+use super::prepared::Prepared;
 use super::problem::rms;
 use super::report::ZoneSummary;
 use crate::model::Plan;
@@ -30,6 +31,7 @@ impl Evaluator {
     pub(super) fn zone_summaries(
         &self,
         plan: &Plan,
+        prep: &Prepared,
         sol: &traycast_solver::Solution,
         dwell: &[f64],
         lin: &[f64],
@@ -38,7 +40,7 @@ impl Evaluator {
         let maps = self.maps.as_ref().expect("set");
         let n = maps.cells;
         let profile = |z: usize| -> Vec<f64> {
-            let cells: Vec<usize> = (0..n).filter(|&i| plan.zone_at(i) == Some(z)).collect();
+            let cells = &prep.zone_cells[z];
             (0..maps.configs)
                 .map(|c| {
                     cells.iter().map(|&i| maps.loaded[c * n + i]).sum::<f64>()
@@ -54,14 +56,11 @@ impl Evaluator {
             if na * nb > 0.0 { dot / (na * nb) } else { 0.0 }
         };
         let mid_rise = |z: usize| -> f64 {
-            let cells: Vec<usize> = (0..n).filter(|&i| plan.zone_at(i) == Some(z)).collect();
+            let cells = &prep.zone_cells[z];
             let zone = &plan.zones[z];
             cells
                 .iter()
-                .map(|&i| {
-                    0.5 * (zone.min_c + zone.max_c)
-                        - plan.items[plan.item_at(i).expect("zoned cells hold food")].start_c
-                })
+                .map(|&i| 0.5 * (zone.min_c + zone.max_c) - prep.start[i])
                 .sum::<f64>()
                 / cells.len().max(1) as f64
         };
@@ -71,7 +70,7 @@ impl Evaluator {
             .is_some_and(|l| dwell.iter().any(|d| *d >= l - 1e-6));
         (0..plan.zones.len())
             .map(|z| {
-                let cells: Vec<usize> = (0..n).filter(|&i| plan.zone_at(i) == Some(z)).collect();
+                let cells = &prep.zone_cells[z];
                 let share = |e: &[f64]| if cells.is_empty() { f64::NAN } else { cells.iter().filter(|&&i| e[i] == 0.0).count() as f64 / cells.len() as f64 };
                 let rms_l = rms(cells.iter().map(|&i| lin[i]));
                 let diagnosis = (rms_l > 1.0).then(|| {

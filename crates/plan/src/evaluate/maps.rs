@@ -5,7 +5,7 @@
 use crate::error::PlanError;
 use crate::field::{self, Absorber};
 use crate::library::{MapLibrary, RateBasis, Window};
-use crate::model::{MapSource, Plan, Sequencing};
+use crate::model::{MapSource, Plan};
 use traycast_thermal::material::Material;
 
 /// Heating maps for a plan, in both forms the pipeline needs.
@@ -123,6 +123,15 @@ pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, P
                     ),
                 )
             })?;
+            if lib.name != *name {
+                return Err(PlanError::new(
+                    "maps.library",
+                    format!(
+                        "the plan uses map library '{name}', but the library loaded is '{}': load '{name}', or switch the plan to '{}' on purpose",
+                        lib.name, lib.name
+                    ),
+                ));
+            }
             if lib.width != plan.tray.width || lib.height != plan.tray.height {
                 return Err(PlanError::new(
                     "maps",
@@ -182,18 +191,67 @@ pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, P
     }
 }
 
-/// Layout fields that change the maps (targets, names and oven timing do not).
-pub(super) fn maps_key(plan: &Plan) -> Plan {
-    let mut p = plan.clone();
-    p.name.clear();
-    p.zones.clear();
-    p.zone.iter_mut().for_each(|z| *z = 0);
-    p.items.iter_mut().for_each(|i| i.name.clear());
-    p.oven.budget_s = None;
-    p.oven.limit_s = None;
-    p.oven.quantum_s = 0.0;
-    p.oven.time_penalty = 0.0;
-    p.oven.sequencing = Sequencing::Blocks;
-    p.oven.standing_s = 0.0;
-    p
+/// A hash of the fields the maps and materials depend on: the tray, the food grid, each item's
+/// food, thickness and start temperature, the configurations, the power and the map source.
+/// Targets, names and oven timing do not enter. (FNV-1a, 64-bit: an identity for caching, not a
+/// security hash.)
+pub(super) fn maps_hash(plan: &Plan) -> u64 {
+    let mut h = crate::fingerprint::Fnv::new();
+    let t = &plan.tray;
+    h.word(t.width as u64);
+    h.word(t.height as u64);
+    h.word(t.cell_mm.to_bits());
+    h.bytes(&plan.food);
+    h.word(plan.items.len() as u64);
+    for it in &plan.items {
+        h.bytes(it.food.as_bytes());
+        h.word(it.thickness_mm.to_bits());
+        h.word(it.start_c.to_bits());
+    }
+    h.word(plan.oven.configs as u64);
+    h.word(plan.oven.power_w.to_bits());
+    match &plan.maps {
+        MapSource::Synthetic { seed } => {
+            h.word(1);
+            h.word(*seed);
+        }
+        MapSource::Library { name } => {
+            h.word(2);
+            h.bytes(name.as_bytes());
+        }
+    }
+    h.finish()
+}
+
+impl PlanMaps {
+    /// What a reader of the results must know about where the maps come from: illustrative,
+    /// outside the replay window, without uncertainties, or partly filled.
+    pub fn warnings(&self) -> Vec<String> {
+        let mut warnings = Vec::new();
+        match &self.provenance {
+            Provenance::Library {
+                library,
+                load,
+                score,
+                window,
+            } => match window {
+                Window::Inside => {}
+                Window::Marginal => warnings.push(format!("maps come from load '{load}' of '{library}', similarity {score:.2}: outside the replay window's core, verify by measurement")),
+                Window::Outside => warnings.push(format!("maps come from load '{load}' of '{library}', recorded for a different load (similarity {score:.2}): the predictions are not trustworthy")),
+            },
+            Provenance::Synthetic => warnings
+                .push("maps come from the illustrative field model, not from measurements".into()),
+        }
+        match (&self.provenance, &self.loaded_se) {
+            (Provenance::Library { library, .. }, None) => warnings.push(format!(
+                "library '{library}' carries no rate uncertainties: the predictions have no interval and the verdicts use nominal temperatures"
+            )),
+            (_, Some(_)) if self.filled > 0 => warnings.push(format!(
+                "{} of the map values on this tray's food were filled from neighbours, not measured; their wider errors are in the intervals",
+                self.filled
+            )),
+            _ => {}
+        }
+        warnings
+    }
 }

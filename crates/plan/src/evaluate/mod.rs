@@ -15,6 +15,7 @@ mod baseline;
 mod course;
 mod diagnosis;
 mod maps;
+mod prepared;
 mod problem;
 mod refine;
 mod report;
@@ -31,65 +32,90 @@ pub use report::{
 };
 pub use verdicts::cell_bounds;
 
+pub use prepared::Prepared;
+
 use crate::error::PlanError;
-use crate::library::{MapLibrary, Window};
+use crate::library::MapLibrary;
 use crate::model::{Plan, Sequencing};
 use course::course_warnings;
-use maps::maps_key;
-use problem::{band_distance, bands, quantise};
+use maps::maps_hash;
+use problem::{predict, quantise};
 use traycast_solver::DwellSolver;
+use traycast_thermal::material::Material;
 use traycast_thermal::safety;
 use traycast_thermal::schedule::Schedule;
 use traycast_thermal::simulate::Settings;
 
-/// Caches maps and the warm solver between evaluations of a plan being edited.
+/// Caches what a plan being edited does not change from stroke to stroke: the map library (owned,
+/// its content hashed once), the maps and materials (keyed on a hash of the fields they depend on,
+/// never on comparing plans by value), and the warm solver.
 #[derive(Default)]
 pub struct Evaluator {
-    maps_key: Option<(Plan, Option<MapLibrary>)>,
+    library: Option<MapLibrary>,
+    library_hash: u64,
+    maps_key: Option<u64>,
     maps: Option<PlanMaps>,
+    mats: Vec<Material>,
     solver: Option<(Vec<usize>, DwellSolver)>,
 }
 
 impl Evaluator {
-    /// A fresh evaluator.
+    /// A fresh evaluator on the illustrative field model (no library).
     pub fn new() -> Self {
         Self::default()
     }
 
-    /// The maps for `plan`, regenerated only when the layout changed.
-    pub fn maps(
-        &mut self,
-        plan: &Plan,
-        library: Option<&MapLibrary>,
-    ) -> Result<&PlanMaps, PlanError> {
-        // Compared in place: the library is only cloned when the maps really change.
-        let layout = maps_key(plan);
-        let same = self
-            .maps_key
-            .as_ref()
-            .is_some_and(|(p, l)| *p == layout && l.as_ref() == library);
-        if !same || self.maps.is_none() {
-            self.maps = Some(maps_for(plan, library)?);
-            self.maps_key = Some((layout, library.cloned()));
+    /// A fresh evaluator with `library` loaded.
+    pub fn with_library(library: Option<MapLibrary>) -> Self {
+        let mut ev = Self::new();
+        ev.set_library(library);
+        ev
+    }
+
+    /// Loads `library` (or none) for the plans evaluated next. Its content is hashed once here;
+    /// the caches are dropped only when the content differs from the library held.
+    pub fn set_library(&mut self, library: Option<MapLibrary>) {
+        let hash = library.as_ref().map_or(0, MapLibrary::content_hash);
+        if hash != self.library_hash || library.is_some() != self.library.is_some() {
+            self.maps_key = None;
+            self.maps = None;
             self.solver = None;
+        }
+        self.library = library;
+        self.library_hash = hash;
+    }
+
+    /// The library loaded, if any.
+    pub fn library(&self) -> Option<&MapLibrary> {
+        self.library.as_ref()
+    }
+
+    /// The maps for `plan`, regenerated only when a field they depend on changed.
+    pub fn maps(&mut self, plan: &Plan) -> Result<&PlanMaps, PlanError> {
+        let key = maps_hash(plan) ^ self.library_hash.rotate_left(1);
+        if self.maps_key != Some(key) || self.maps.is_none() {
+            self.maps = None;
+            self.maps_key = None;
+            self.solver = None;
+            self.mats = materials(plan)?;
+            self.maps = Some(maps_for(plan, self.library.as_ref())?);
+            self.maps_key = Some(key);
         }
         Ok(self.maps.as_ref().expect("just set"))
     }
 
     /// The fast part of an evaluation, for every brush stroke: solve (warm) and the linear
     /// prediction, without the time course. [`Evaluator::evaluate`] gives everything.
-    pub fn quick(&mut self, plan: &Plan, library: Option<&MapLibrary>) -> Result<Quick, PlanError> {
+    pub fn quick(&mut self, plan: &Plan) -> Result<Quick, PlanError> {
         plan.validate()?;
-        self.maps(plan, library)?;
-        let sol = self.solve(plan, None)?;
+        let prep = Prepared::new(plan);
+        self.maps(plan)?;
+        let sol = self.solve(plan, &prep, None)?;
         let maps = self.maps.as_ref().expect("set");
-        let mut dwell = sol.dwell.clone();
+        let mut dwell = sol.dwell;
         quantise(&mut dwell, plan.oven.quantum_s, plan.oven.budget_s);
-        let linear = linear_prediction(plan, maps, &dwell);
-        let band = bands(plan);
-        let error_linear = (0..maps.cells)
-            .map(|i| band[i].map_or(f64::NAN, |(a, b)| band_distance(linear[i], a, b)))
-            .collect();
+        let linear = predict(&prep.start, maps, &dwell);
+        let error_linear = prep.band_errors(&linear);
         Ok(Quick {
             total_s: dwell.iter().sum(),
             dwell,
@@ -100,18 +126,14 @@ impl Evaluator {
     }
 
     /// Evaluates `plan` end to end.
-    pub fn evaluate(
-        &mut self,
-        plan: &Plan,
-        library: Option<&MapLibrary>,
-        options: Options,
-    ) -> Result<Evaluation, PlanError> {
+    pub fn evaluate(&mut self, plan: &Plan, options: Options) -> Result<Evaluation, PlanError> {
         plan.validate()?;
-        self.maps(plan, library)?;
-        let sol = self.solve(plan, None)?;
-        let mut eval = self.finish(plan, &sol, None)?;
+        let prep = Prepared::new(plan);
+        self.maps(plan)?;
+        let sol = self.solve(plan, &prep, None)?;
+        let mut eval = self.finish(plan, &prep, &sol, None)?;
         if options.refine {
-            self.refine(plan, &mut eval)?;
+            self.refine(plan, &prep, &mut eval)?;
         }
         Ok(eval)
     }
@@ -119,20 +141,19 @@ impl Evaluator {
     fn finish(
         &self,
         plan: &Plan,
+        prep: &Prepared,
         sol: &traycast_solver::Solution,
         gains: Option<&[f64]>,
     ) -> Result<Evaluation, PlanError> {
         let maps = self.maps.as_ref().expect("set");
-        let n = maps.cells;
         let mut dwell = sol.dwell.clone();
         quantise(&mut dwell, plan.oven.quantum_s, plan.oven.budget_s);
-        let mut linear = linear_prediction(plan, maps, &dwell);
+        let mut linear = predict(&prep.start, maps, &dwell);
         if let Some(g) = gains {
             // The refined model's own linear prediction.
-            for i in 0..n {
-                if let Some(k) = plan.item_at(i) {
-                    let s0 = plan.items[k].start_c;
-                    linear[i] = s0 + (linear[i] - s0) * g[i];
+            for (i, (l, s0)) in linear.iter_mut().zip(&prep.start).enumerate() {
+                if s0.is_finite() {
+                    *l = s0 + (*l - s0) * g[i];
                 }
             }
         }
@@ -140,23 +161,18 @@ impl Evaluator {
             Sequencing::Blocks => Schedule::blocks(&dwell),
             Sequencing::Rounds(r) => Schedule::rounds(&dwell, r as usize),
         };
-        let mats = materials(plan)?;
         let settings = Settings {
             standing: plan.oven.standing_s,
             ..Settings::default()
         };
-        let course = time_course(plan, maps, &mats, &schedule, &settings)?;
-        let band = bands(plan);
-        let err = |temps: &[f64]| -> Vec<f64> {
-            (0..n)
-                .map(|i| band[i].map_or(f64::NAN, |(a, b)| band_distance(temps[i], a, b)))
-                .collect()
-        };
-        let error_linear = err(&linear);
-        let error_simulated = err(&course.after_standing);
-        let mut warnings = course_warnings(plan, &course);
-        let cap_excess = (0..n)
-            .filter_map(|i| {
+        let course = time_course(plan, maps, &self.mats, &schedule, &settings)?;
+        let error_linear = prep.band_errors(&linear);
+        let error_simulated = prep.band_errors(&course.after_standing);
+        let mut warnings = course_warnings(plan, prep, &course);
+        let cap_excess = prep
+            .rows
+            .iter()
+            .filter_map(|&i| {
                 plan.zone_at(i)
                     .and_then(|z| plan.zones[z].cap_c)
                     .map(|c| linear[i] - c)
@@ -165,39 +181,15 @@ impl Evaluator {
         if cap_excess > 0.05 {
             warnings.push(format!("a hard cap is exceeded by {cap_excess:.1} K in the linear prediction: no schedule keeps it while heating the rest"));
         }
-        if let Provenance::Library {
-            library,
-            load,
-            score,
-            window,
-        } = &maps.provenance
-        {
-            match window {
-                Window::Inside => {}
-                Window::Marginal => warnings.push(format!("maps come from load '{load}' of '{library}', similarity {score:.2}: outside the replay window's core, verify by measurement")),
-                Window::Outside => warnings.push(format!("maps come from load '{load}' of '{library}', recorded for a different load (similarity {score:.2}): the predictions are not trustworthy")),
-            }
-        } else {
-            warnings
-                .push("maps come from the illustrative field model, not from measurements".into());
-        }
-        match (&maps.provenance, &maps.loaded_se) {
-            (Provenance::Library { library, .. }, None) => warnings.push(format!(
-                "library '{library}' carries no rate uncertainties: the predictions have no interval and the verdicts use nominal temperatures"
-            )),
-            (_, Some(_)) if maps.filled > 0 => warnings.push(format!(
-                "{} of the map values on this tray's food were filled from neighbours, not measured; their wider errors are in the intervals",
-                maps.filled
-            )),
-            _ => {}
-        }
+        warnings.extend(maps.warnings());
         let bounds = maps
             .loaded_se
             .as_ref()
-            .map(|se| cell_bounds(plan, maps, se, &dwell, &mats, &course));
-        let zones = self.zone_summaries(plan, sol, &dwell, &error_linear, &error_simulated);
-        let items = verdicts::item_summaries(plan, &course, &error_simulated, bounds.as_ref());
-        let baseline = baseline(plan, maps);
+            .map(|se| cell_bounds(plan, maps, se, &dwell, &self.mats, &course));
+        let zones = self.zone_summaries(plan, prep, sol, &dwell, &error_linear, &error_simulated);
+        let items =
+            verdicts::item_summaries(plan, prep, &course, &error_simulated, bounds.as_ref());
+        let baseline = baseline::of(plan, prep, maps);
         Ok(Evaluation {
             total_s: dwell.iter().sum(),
             dwell,
@@ -227,5 +219,5 @@ pub fn evaluate(
     library: Option<&MapLibrary>,
     options: Options,
 ) -> Result<Evaluation, PlanError> {
-    Evaluator::new().evaluate(plan, library, options)
+    Evaluator::with_library(library.cloned()).evaluate(plan, options)
 }

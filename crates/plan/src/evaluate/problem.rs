@@ -4,6 +4,7 @@
 
 use super::Evaluator;
 use super::maps::PlanMaps;
+use super::prepared::Prepared;
 use crate::error::PlanError;
 use crate::model::Plan;
 use traycast_solver::{DwellSolver, Rates, Spec};
@@ -21,21 +22,6 @@ pub(super) fn rms(v: impl Iterator<Item = f64>) -> f64 {
     if n == 0 { 0.0 } else { (s / n as f64).sqrt() }
 }
 
-/// Per-cell target band in °C (min, effective max with the cap) for zoned cells.
-pub(super) fn bands(plan: &Plan) -> Vec<Option<(f64, f64)>> {
-    (0..plan.tray.cells())
-        .map(|i| {
-            plan.zone_at(i).map(|z| {
-                let zone = &plan.zones[z];
-                (
-                    zone.min_c,
-                    zone.cap_c.map_or(zone.max_c, |c| c.min(zone.max_c)),
-                )
-            })
-        })
-        .collect()
-}
-
 pub(super) fn start_temps(plan: &Plan) -> Vec<f64> {
     (0..plan.tray.cells())
         .map(|i| plan.item_at(i).map_or(f64::NAN, |k| plan.items[k].start_c))
@@ -44,19 +30,24 @@ pub(super) fn start_temps(plan: &Plan) -> Vec<f64> {
 
 /// Linear prediction start + Σ_j rate_j·x_j for every food cell (NaN elsewhere).
 pub fn linear_prediction(plan: &Plan, maps: &PlanMaps, dwell: &[f64]) -> Vec<f64> {
+    predict(&start_temps(plan), maps, dwell)
+}
+
+/// [`linear_prediction`] from start temperatures already derived (NaN for empty cells).
+pub(super) fn predict(start: &[f64], maps: &PlanMaps, dwell: &[f64]) -> Vec<f64> {
     let n = maps.cells;
-    let start = start_temps(plan);
-    (0..n)
-        .map(|i| {
-            if start[i].is_nan() {
-                return f64::NAN;
-            }
-            start[i]
-                + (0..maps.configs)
-                    .map(|c| maps.loaded[c * n + i] * dwell[c])
-                    .sum::<f64>()
-        })
-        .collect()
+    // Configuration by configuration over contiguous maps, skipping the ones not used (most are
+    // not): empty cells start at NaN and stay NaN.
+    let mut out = start.to_vec();
+    for (c, &x) in dwell.iter().enumerate() {
+        if x == 0.0 {
+            continue;
+        }
+        for (o, r) in out.iter_mut().zip(&maps.loaded[c * n..(c + 1) * n]) {
+            *o += r * x;
+        }
+    }
+    out
 }
 
 /// Rounds dwells to the controller quantum without breaking the budget.
@@ -83,13 +74,12 @@ impl Evaluator {
     pub(super) fn solve(
         &mut self,
         plan: &Plan,
+        prep: &Prepared,
         gains: Option<&[f64]>,
     ) -> Result<traycast_solver::Solution, PlanError> {
         let maps = self.maps.as_ref().expect("maps computed first");
         let n = maps.cells;
-        let band = bands(plan);
-        let start = start_temps(plan);
-        let rows: Vec<usize> = (0..n).filter(|&i| band[i].is_some()).collect();
+        let (band, start, rows) = (&prep.band, &prep.start, &prep.rows);
         let build = |g: Option<&[f64]>| -> Result<DwellSolver, PlanError> {
             let data: Vec<f64> = rows
                 .iter()
@@ -109,7 +99,7 @@ impl Evaluator {
                 &mut scratch
             }
             None => {
-                if self.solver.as_ref().map(|(r, _)| r) != Some(&rows) {
+                if self.solver.as_ref().map(|(r, _)| r) != Some(rows) {
                     self.solver = Some((rows.clone(), build(None)?));
                 }
                 &mut self.solver.as_mut().expect("set").1
@@ -131,9 +121,9 @@ impl Evaluator {
         spec.budget = plan.oven.budget_s;
         spec.time_penalty = plan.oven.time_penalty;
         spec.ridge = 0.0;
-        let mut sol = solver.solve(&spec)?;
         // Hard caps: raise the weight of cells above their cap until the linear prediction respects
-        // it (to 0.05 K) or the weights reach 10⁶× (then the excess is reported).
+        // it (to 0.05 K) or the weights reach 10⁶× (then the excess is reported). Only then are the
+        // per-cell predictions needed; without caps the dwell-only path skips A·x.
         let caps: Vec<Option<f64>> = rows
             .iter()
             .map(|&i| {
@@ -142,6 +132,10 @@ impl Evaluator {
                     .map(|c| c - start[i])
             })
             .collect();
+        if caps.iter().all(Option::is_none) {
+            return Ok(solver.solve_dwell(&spec)?);
+        }
+        let mut sol = solver.solve(&spec)?;
         for _ in 0..6 {
             let mut changed = false;
             for (r, cap) in caps.iter().enumerate() {

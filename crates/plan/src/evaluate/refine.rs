@@ -2,6 +2,7 @@
 //! (simulated rise ÷ linear rise at the end of heating), up to three passes, keeping the best.
 
 use super::Evaluator;
+use super::prepared::Prepared;
 use super::problem::rms;
 use super::report::{Evaluation, Refinement};
 use crate::error::PlanError;
@@ -9,7 +10,12 @@ use crate::model::Plan;
 
 impl Evaluator {
     /// Refines `eval` in place (see the module docs); records what the refinement achieved.
-    pub(super) fn refine(&mut self, plan: &Plan, eval: &mut Evaluation) -> Result<(), PlanError> {
+    pub(super) fn refine(
+        &mut self,
+        plan: &Plan,
+        prep: &Prepared,
+        eval: &mut Evaluation,
+    ) -> Result<(), PlanError> {
         // Re-solve with each targeted cell's rates scaled by the gain the simulation showed
         // (simulated rise ÷ linear rise at the end of heating), up to three passes; keep the best.
         let before = rms(eval
@@ -31,8 +37,8 @@ impl Evaluator {
                     }
                 }
             }
-            let sol = self.solve(plan, Some(&gains))?;
-            let candidate = self.finish(plan, &sol, Some(&gains))?;
+            let sol = self.solve(plan, prep, Some(&gains))?;
+            let candidate = self.finish(plan, prep, &sol, Some(&gains))?;
             let after = rms(candidate
                 .error_simulated
                 .iter()

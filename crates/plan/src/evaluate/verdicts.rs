@@ -2,6 +2,7 @@
 //! each item's summary with its coldest-point verdict (on the bounds when the maps carry errors).
 
 use super::maps::PlanMaps;
+use super::prepared::Prepared;
 use super::report::{CellBounds, ItemSummary, Spread, Z95};
 use crate::model::Plan;
 use traycast_thermal::composition::LATENT_VAPORISATION;
@@ -55,15 +56,15 @@ pub fn cell_bounds(
 /// zoned cells in band, and the verdict (judged on `bounds` when the maps carry errors).
 pub(super) fn item_summaries(
     plan: &Plan,
+    prep: &Prepared,
     course: &TimeCourse,
     error_simulated: &[f64],
     bounds: Option<&CellBounds>,
 ) -> Vec<ItemSummary> {
-    let n = plan.tray.cells();
     let last = course.times.len() - 1;
     (0..plan.items.len())
         .map(|k| {
-            let cells_k: Vec<usize> = (0..n).filter(|&i| plan.item_at(i) == Some(k)).collect();
+            let cells_k = &prep.item_cells[k];
             let temps: Vec<f64> = cells_k.iter().map(|&i| course.after_standing[i]).collect();
             let zoned: Vec<f64> = cells_k
                 .iter()

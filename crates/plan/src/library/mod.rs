@@ -169,6 +169,45 @@ fn letter_class(ch: char) -> Option<Option<LossClass>> {
 }
 
 impl MapLibrary {
+    /// A hash of the library's content (tray, configurations, basis and every load's name, layout,
+    /// rates, errors and fill flags; not the library's name): two libraries with the same hash
+    /// hold the same maps. FNV-1a, 64-bit: an identity, not a security hash.
+    pub fn content_hash(&self) -> u64 {
+        let mut h = crate::fingerprint::Fnv::new();
+        h.word(self.width as u64);
+        h.word(self.height as u64);
+        h.word(self.cell_mm.to_bits());
+        h.word(self.configs as u64);
+        h.bytes(self.basis.as_str().as_bytes());
+        h.word(self.loads.len() as u64);
+        for l in &self.loads {
+            h.bytes(l.name.as_bytes());
+            h.bytes(
+                &l.layout
+                    .iter()
+                    .map(|c| class_letter(*c) as u8)
+                    .collect::<Vec<u8>>(),
+            );
+            h.word(l.rates.len() as u64);
+            for r in &l.rates {
+                h.word(r.to_bits());
+            }
+            match &l.uncertainty {
+                None => h.word(0),
+                Some(u) => {
+                    h.word(1);
+                    for v in &u.se {
+                        h.word(v.to_bits());
+                    }
+                    h.bytes(&u.filled.iter().map(|&f| f as u8).collect::<Vec<u8>>());
+                }
+            }
+        }
+        h.finish()
+    }
+}
+
+impl MapLibrary {
     /// Structural and plausibility checks; the error names the load, configuration and cell.
     pub fn validate(&self) -> Result<(), PlanError> {
         check_shape("library", self.width, self.height, self.configs)?;
