@@ -105,6 +105,15 @@ impl PlanError {
             message: message.into(),
         }
     }
+
+    /// A JSON text that does not parse, at the line and column the parser names.
+    pub(crate) fn json(e: serde_json::Error) -> Self {
+        let place = Place::Line {
+            line: e.line(),
+            column: Some(e.column()),
+        };
+        PlanError::new(place, e.to_string())
+    }
 }
 
 /// Refuses a text longer than `max` bytes before anything is parsed from it.

@@ -314,13 +314,7 @@ pub fn to_json(plan: &Plan) -> String {
 /// Reads a plan JSON file; the error names the line or the field.
 pub fn from_json(text: &str) -> Result<Plan, PlanError> {
     crate::error::check_length("plan file", text, MAX_PLAN_JSON)?;
-    let doc: PlanDoc = serde_json::from_str(text).map_err(|e| {
-        let place = crate::error::Place::Line {
-            line: e.line(),
-            column: Some(e.column()),
-        };
-        PlanError::new(place, e.to_string())
-    })?;
+    let doc: PlanDoc = serde_json::from_str(text).map_err(PlanError::json)?;
     Plan::try_from(doc)
 }
 

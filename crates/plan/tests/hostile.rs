@@ -10,6 +10,16 @@ use traycast_plan::model::{FoodItem, Plan, Sequencing, Zone};
 use traycast_plan::runs::{HeatingRuns, MAX_TIME_S, ReadOptions};
 use traycast_plan::{demos, summary};
 
+/// The highest temperature any cell reached, °C.
+fn hottest(e: &Evaluation) -> f64 {
+    e.course
+        .peak
+        .iter()
+        .copied()
+        .filter(|v| v.is_finite())
+        .fold(f64::MIN, f64::max)
+}
+
 /// Every number a user can see for a plan: finite wherever the plan has food, and every verdict
 /// that passes has a finite margin.
 fn assert_all_finite(plan: &Plan, e: &Evaluation) {
@@ -54,13 +64,7 @@ fn assert_all_finite(plan: &Plan, e: &Evaluation) {
     let json = summary::to_json(plan, e).to_string();
     assert!(!json.contains("NaN") && !json.contains("inf"), "{json}");
     // Past the model's range is never silent.
-    let hottest = e
-        .course
-        .peak
-        .iter()
-        .copied()
-        .filter(|v| v.is_finite())
-        .fold(f64::MIN, f64::max);
+    let hottest = hottest(e);
     if hottest > traycast_thermal::simulate::MODEL_LIMIT_C {
         assert!(
             e.warnings.iter().any(|w| w.contains("scorch")),
@@ -108,13 +112,7 @@ fn dried_food_does_not_run_away_and_scorching_is_warned() {
     }
     let e = evaluate::evaluate(&plan, None, Options::default()).unwrap();
     assert_all_finite(&plan, &e);
-    let hottest = e
-        .course
-        .peak
-        .iter()
-        .copied()
-        .filter(|v| v.is_finite())
-        .fold(f64::MIN, f64::max);
+    let hottest = hottest(&e);
     assert!(hottest < 1000.0, "{hottest}");
 }
 

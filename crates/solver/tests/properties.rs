@@ -23,6 +23,19 @@ fn assert_optimal(case: &Case, x: &[f64]) -> Result<(), TestCaseError> {
     Ok(())
 }
 
+/// The case with its rates scaled by 10^k and its band edges by 10^l (the rates may be refused).
+fn scaled(c: &Case, k: i32, l: i32) -> (Result<Rates, traycast_solver::InputError>, Spec) {
+    let (m, n) = (c.rates.cells(), c.rates.configs());
+    let (sa, sy) = (10f64.powi(k), 10f64.powi(l));
+    let data: Vec<f64> = (0..m)
+        .flat_map(|r| (0..n).map(move |j| c.rates.get(r, j) * sa))
+        .collect();
+    let mut spec = c.spec.clone();
+    spec.lo.iter_mut().for_each(|v| *v *= sy);
+    spec.hi.iter_mut().for_each(|v| *v *= sy);
+    (Rates::from_row_major(m, n, &data), spec)
+}
+
 proptest! {
     #![proptest_config(common::config())]
 
@@ -96,13 +109,9 @@ proptest! {
     /// Scaling A by 10^k and every target by 10^l scales x by 10^(l−k) and the objective by 10^(2l).
     #[test]
     fn scaling_rates_and_targets(c in case(false), k in -6i32..=6, l in -6i32..=6) {
-        let (m, n) = (c.rates.cells(), c.rates.configs());
-        let (sa, sy) = (10f64.powi(k), 10f64.powi(l));
-        let data: Vec<f64> = (0..m).flat_map(|r| (0..n).map(move |j| (r, j))).map(|(r, j)| c.rates.get(r, j) * sa).collect();
-        let mut spec = c.spec.clone();
-        spec.lo.iter_mut().for_each(|v| *v *= sy);
-        spec.hi.iter_mut().for_each(|v| *v *= sy);
-        let scaled = Case { rates: Rates::from_row_major(m, n, &data).unwrap(), spec };
+        let sy = 10f64.powi(l);
+        let (rates, spec) = scaled(&c, k, l);
+        let scaled = Case { rates: rates.unwrap(), spec };
         let base = solve(&c);
         let big = solve(&scaled);
         let scale = objective_scale(&c);
@@ -117,13 +126,8 @@ proptest! {
     /// status says optimal, the certificate recomputed from scratch ([`kkt::check`]) proves it.
     #[test]
     fn extreme_scales_are_certified_or_refused(c in case(false), k in -95i32..=95, l in -95i32..=95) {
-        let (m, n) = (c.rates.cells(), c.rates.configs());
-        let (sa, sy) = (10f64.powi(k), 10f64.powi(l));
-        let data: Vec<f64> = (0..m).flat_map(|r| (0..n).map(move |j| (r, j))).map(|(r, j)| c.rates.get(r, j) * sa).collect();
-        let mut spec = c.spec.clone();
-        spec.lo.iter_mut().for_each(|v| *v *= sy);
-        spec.hi.iter_mut().for_each(|v| *v *= sy);
-        let Ok(rates) = Rates::from_row_major(m, n, &data) else {
+        let (rates, spec) = scaled(&c, k, l);
+        let Ok(rates) = rates else {
             return Ok(());
         };
         let sol = match DwellSolver::new(rates.clone()).solve(&spec) {

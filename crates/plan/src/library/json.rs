@@ -56,13 +56,7 @@ impl MapLibrary {
     /// Parses the JSON form.
     pub fn from_json(text: &str) -> Result<Self, PlanError> {
         crate::error::check_length("map library", text, MAX_LIBRARY_BYTES)?;
-        let doc: LibraryDoc = serde_json::from_str(text).map_err(|e| {
-            let place = crate::error::Place::Line {
-                line: e.line(),
-                column: Some(e.column()),
-            };
-            PlanError::new(place, e.to_string())
-        })?;
+        let doc: LibraryDoc = serde_json::from_str(text).map_err(PlanError::json)?;
         if doc.format != FORMAT || doc.version != 1 {
             return Err(PlanError::new(
                 "format",
