@@ -2,8 +2,9 @@
 //! quality report on stdout.
 
 use crate::error::CliError;
+use crate::format::{Format, print_json};
 use crate::plans::{in_file, load_plan, read_at_most, write};
-use crate::progress::Progress;
+use crate::progress;
 use std::path::{Path, PathBuf};
 use traycast_plan::calibrate::{self, Settings};
 use traycast_plan::runs::{HeatingRuns, ReadOptions};
@@ -28,16 +29,19 @@ pub struct Args {
     /// Also write the per-probe fit table (CSV) here.
     #[arg(long)]
     pub probes: Option<PathBuf>,
-    /// How many notes the report lists.
+    /// How many notes the text report lists (the JSON report has them all).
     #[arg(long, default_value_t = 40)]
     pub notes: usize,
+    /// The report: `text` or `json`.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: Format,
 }
 
 /// Runs the command.
 pub fn run(args: &Args) -> Result<(), CliError> {
     let layout = load_plan(&args.layout)?;
     let text = read_at_most(&args.runs, traycast_plan::runs::MAX_RUNS_BYTES)?;
-    let _progress = Progress::after_a_second("calibrating");
+    let spinner = progress::spinner("calibrating");
     let runs = HeatingRuns::parse(
         &text,
         &layout,
@@ -51,7 +55,7 @@ pub fn run(args: &Args) -> Result<(), CliError> {
     if let Some(name) = &args.name {
         cal.library.name = name.clone();
     }
-    drop(_progress);
+    spinner.finish_and_clear();
     let library = if is_csv(&args.out) {
         cal.library.to_csv()
     } else {
@@ -61,16 +65,31 @@ pub fn run(args: &Args) -> Result<(), CliError> {
     if let Some(path) = &args.probes {
         write(path, &cal.probe_table(&runs))?;
     }
-    print!("{}", cal.report.to_text(args.notes));
-    println!(
-        "\nWrote library '{}' ({} configurations, rates of thawed food with standard errors) to {}.",
-        cal.library.name,
-        cal.library.configs,
-        args.out.display()
-    );
-    println!(
-        "Predicted temperatures from it are estimates; check the coldest part of each food with a calibrated thermometer and follow your local food code."
-    );
+    match args.format {
+        Format::Text => {
+            print!("{}", cal.report.to_text(args.notes));
+            println!(
+                "\nWrote library '{}' ({} configurations, rates of thawed food with standard errors) to {}.",
+                cal.library.name,
+                cal.library.configs,
+                args.out.display()
+            );
+            println!(
+                "Predicted temperatures from it are estimates; check the coldest part of each food with a calibrated thermometer and follow your local food code."
+            );
+        }
+        Format::Json => {
+            let mut report = cal.report.to_json();
+            report["library"] = serde_json::json!({
+                "name": cal.library.name,
+                "configs": cal.library.configs,
+                "out": args.out.display().to_string(),
+                "content_hash": format!("{:016x}", cal.library.content_hash()),
+            });
+            report["cautions"] = serde_json::json!(traycast_thermal::safety::CAUTIONS);
+            print_json(&report);
+        }
+    }
     Ok(())
 }
 

@@ -1,21 +1,34 @@
-//! `traycast`: the command line beside the workbench — batch dwell solves for spreadsheet users.
+//! `traycast`: the command line beside the workbench — plan, solve, simulate, calibrate and batch
+//! evaluations for spreadsheet users and scripts.
 //!
 //! Thin glue: argument parsing and file I/O here, every computation in the library crates.
+//! Conventions shared by every command: `--format text|json` where a command prints results,
+//! `--out FILE` for every file it writes, plain decimal numbers, the exit codes below.
 
+mod batch;
 mod calibrate;
 mod error;
+mod format;
+mod library;
 mod nnls;
 mod numfile;
 mod plans;
 mod progress;
+mod solve;
 
 use clap::{Parser, Subcommand};
+use format::Format;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
 /// Plan dwell times for field-steered microwave ovens.
 #[derive(Parser)]
-#[command(name = "traycast", version, about)]
+#[command(
+    name = "traycast",
+    version,
+    about,
+    after_help = "Exit codes: 0 done; 2 bad input or usage (the message names the file and line, or the option); 1 anything else (a file that cannot be written).\n\nPredicted temperatures are estimates: check the coldest part of each food with a calibrated thermometer and follow your local food code."
+)]
 struct Cli {
     #[command(subcommand)]
     command: Command,
@@ -35,37 +48,18 @@ enum Command {
         /// Also write invented bench runs of the demo here (a heating-runs CSV to try `calibrate` on).
         #[arg(long)]
         runs: Option<PathBuf>,
+        /// Output of the list: `text` or `json`.
+        #[arg(long, value_enum, default_value_t)]
+        format: Format,
     },
     /// Turn recorded heating runs into a map library with standard errors, and report their quality.
     Calibrate(calibrate::Args),
     /// Solve a plan and report dwells, zones, coldest-cell verdicts and the unsteered baseline.
-    Solve {
-        /// Plan JSON file.
-        plan: PathBuf,
-        /// Map library (CSV or JSON) for plans that use one.
-        #[arg(long)]
-        library: Option<PathBuf>,
-        /// `table` (default) or `json`.
-        #[arg(long, default_value = "table", value_parser = ["table", "json"])]
-        format: String,
-        /// Re-solve once with the simulation's correction.
-        #[arg(long)]
-        refine: bool,
-    },
+    Solve(solve::SolveArgs),
     /// Simulate a plan's time course and write per-food curves as CSV.
-    Simulate {
-        /// Plan JSON file.
-        plan: PathBuf,
-        /// Map library (CSV or JSON) for plans that use one.
-        #[arg(long)]
-        library: Option<PathBuf>,
-        /// Output CSV of min/mean/max per food item over time.
-        #[arg(long)]
-        csv: PathBuf,
-        /// Also write the controller schedule CSV here.
-        #[arg(long)]
-        schedule: Option<PathBuf>,
-    },
+    Simulate(solve::SimulateArgs),
+    /// Evaluate many plans against one or more libraries in parallel; one summary line each.
+    Batch(batch::Args),
     /// Print the share link of a plan.
     Link {
         /// Plan JSON file.
@@ -79,50 +73,34 @@ enum Command {
         #[arg(long)]
         out: Option<PathBuf>,
     },
-    /// Check or convert a heating-map library.
-    Library {
-        /// `check` or `convert`.
-        #[arg(value_parser = ["check", "convert"])]
-        action: String,
-        /// Library file (CSV or JSON).
-        file: PathBuf,
-        /// Output for convert (.json or .csv).
-        #[arg(long)]
-        out: Option<PathBuf>,
-    },
+    /// Check, convert or export heating-map libraries.
+    #[command(subcommand)]
+    Library(library::Command),
 }
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Nnls(args) => nnls::run(&args),
-        Command::Demo { name, out, runs } => {
-            plans::demo(name.as_deref(), out.as_deref(), runs.as_deref())
-        }
-        Command::Calibrate(args) => calibrate::run(&args),
-        Command::Solve {
-            plan,
-            library,
+        Command::Demo {
+            name,
+            out,
+            runs,
             format,
-            refine,
-        } => plans::solve(&plan, library.as_ref(), format == "json", refine),
-        Command::Simulate {
-            plan,
-            library,
-            csv,
-            schedule,
-        } => plans::simulate(&plan, library.as_ref(), &csv, schedule.as_ref()),
+        } => plans::demo(name.as_deref(), out.as_deref(), runs.as_deref(), format),
+        Command::Calibrate(args) => calibrate::run(&args),
+        Command::Solve(args) => solve::solve(&args),
+        Command::Simulate(args) => solve::simulate(&args),
+        Command::Batch(args) => batch::run(&args),
         Command::Link { plan } => plans::link(&plan),
         Command::Open { link, out } => plans::open(&link, out.as_deref()),
-        Command::Library { action, file, out } => {
-            plans::library(action == "convert", &file, out.as_deref())
-        }
+        Command::Library(command) => library::run(&command),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("traycast: {e}");
-            ExitCode::from(2)
+            ExitCode::from(e.code)
         }
     }
 }

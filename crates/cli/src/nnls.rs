@@ -1,10 +1,11 @@
 //! `traycast nnls`: the low-level solve for measured data in spreadsheets.
 
 use crate::error::CliError;
+use crate::format::{Format, exact, print_json};
 use crate::numfile::{Allow, read_matrix, read_vector};
 use std::path::{Path, PathBuf};
 use std::time::Instant;
-use traycast_solver::{DwellSolver, Field, InputError, Rates, Solution, Spec};
+use traycast_solver::{DwellSolver, Field, InputError, Rates, Solution, Spec, Status};
 
 /// Arguments of `traycast nnls`.
 #[derive(clap::Args)]
@@ -38,8 +39,8 @@ pub struct Args {
         allow_negative_numbers = true
     )]
     time_penalty: f64,
-    /// Output: `lines` (one dwell per line) or `json`.
-    #[arg(long, value_enum, default_value_t = Format::Lines)]
+    /// Output: `text` (one dwell per line, seconds, plain decimals) or `json`.
+    #[arg(long, value_enum, default_value_t)]
     format: Format,
     /// Solve N times from cold and report the median time (JSON field solve_seconds_median);
     /// 1 to 100 000.
@@ -49,13 +50,6 @@ pub struct Args {
 
 /// Most solves `--repeat` runs.
 const MAX_REPEAT: i64 = 100_000;
-
-/// Output format.
-#[derive(Clone, Copy, clap::ValueEnum)]
-enum Format {
-    Lines,
-    Json,
-}
 
 /// Runs the command.
 pub fn run(args: &Args) -> Result<(), CliError> {
@@ -83,7 +77,7 @@ pub fn run(args: &Args) -> Result<(), CliError> {
             vec_for(lo, Allow::Infinite, m, "one per cell of the rates")?,
             vec_for(hi, Allow::Infinite, m, "one per cell of the rates")?,
         ),
-        _ => return Err(CliError("give --target, or both --lo and --hi".into())),
+        _ => return Err(CliError::input("give --target, or both --lo and --hi")),
     };
     let mut spec = Spec::band(lo, hi, n);
     if let Some(w) = &args.weights {
@@ -132,15 +126,22 @@ fn solve(rates: &Rates, spec: &Spec, args: &Args) -> Result<Solution, CliError> 
 }
 
 fn print(sol: &Solution, format: Format, median: Option<f64>) {
+    if !matches!(sol.status, Status::Optimal | Status::BudgetBinding) {
+        eprintln!(
+            "traycast: warning: the solve ended {} (KKT residual {:e}): the dwells are feasible but not proven optimal",
+            sol.status.as_str(),
+            sol.kkt_residual
+        );
+    }
     match format {
-        Format::Lines => {
+        Format::Text => {
             for x in &sol.dwell {
-                println!("{x:.15e}");
+                println!("{}", exact(*x));
             }
         }
         Format::Json => {
             let mut obj = serde_json::json!({
-                "x": sol.dwell,
+                "dwell_s": sol.dwell,
                 "objective": sol.objective,
                 "status": sol.status.as_str(),
                 "iterations": sol.iterations.total(),
@@ -149,7 +150,7 @@ fn print(sol: &Solution, format: Format, median: Option<f64>) {
             if let Some(t) = median {
                 obj["solve_seconds_median"] = serde_json::json!(t);
             }
-            println!("{obj}");
+            print_json(&obj);
         }
     }
 }
@@ -195,19 +196,19 @@ fn locate(args: &Args, e: InputError) -> CliError {
             ..
         } => match vector_file(*field) {
             Some(f) => CliError::at(f, i + 1, 0, &e),
-            None => CliError(e.to_string()),
+            None => CliError::input(&e),
         },
         InputError::Magnitude {
             field: Field::Budget,
             ..
-        } => CliError(format!("--budget: {e}")),
+        } => CliError::input(format!("--budget: {e}")),
         InputError::Magnitude {
             field: Field::TimePenalty,
             ..
-        } => CliError(format!("--time-penalty: {e}")),
+        } => CliError::input(format!("--time-penalty: {e}")),
         InputError::NonPositiveWeight { cell, .. } => match &args.weights {
             Some(w) => CliError::at(w, cell + 1, 0, &e),
-            None => CliError(e.to_string()),
+            None => CliError::input(&e),
         },
         InputError::NotFinite {
             field,
@@ -220,7 +221,7 @@ fn locate(args: &Args, e: InputError) -> CliError {
             ..
         } => match vector_file(*field) {
             Some(f) => CliError::at(f, i + 1, 0, &e),
-            None => CliError(e.to_string()),
+            None => CliError::input(&e),
         },
         InputError::NotFinite {
             field: Field::Budget,
@@ -229,7 +230,7 @@ fn locate(args: &Args, e: InputError) -> CliError {
         | InputError::Negative {
             field: Field::Budget,
             ..
-        } => CliError(format!("--budget: {e}")),
+        } => CliError::input(format!("--budget: {e}")),
         InputError::NotFinite {
             field: Field::TimePenalty,
             ..
@@ -237,7 +238,7 @@ fn locate(args: &Args, e: InputError) -> CliError {
         | InputError::Negative {
             field: Field::TimePenalty,
             ..
-        } => CliError(format!("--time-penalty: {e}")),
-        _ => CliError(e.to_string()),
+        } => CliError::input(format!("--time-penalty: {e}")),
+        _ => CliError::input(&e),
     }
 }

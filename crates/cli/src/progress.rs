@@ -1,38 +1,35 @@
-//! A progress line on stderr for anything that takes more than a second (only on a terminal).
+//! Progress on stderr for work that takes more than a second, and only on a terminal (indicatif).
 
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::IsTerminal;
-use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::Duration;
 
-/// Prints "… still working" after a second until dropped.
-pub struct Progress {
-    done: Arc<AtomicBool>,
+/// A spinner for work of unknown length; cleared when dropped.
+pub fn spinner(what: &'static str) -> ProgressBar {
+    let bar = ProgressBar::with_draw_target(None, target());
+    bar.set_style(ProgressStyle::with_template("{spinner} {msg} ({elapsed})").expect("template"));
+    bar.set_message(what);
+    bar.enable_steady_tick(Duration::from_millis(120));
+    bar
 }
 
-impl Progress {
-    /// Starts the timer for `what`.
-    pub fn after_a_second(what: &'static str) -> Self {
-        let done = Arc::new(AtomicBool::new(false));
-        if std::io::stderr().is_terminal() {
-            let flag = done.clone();
-            std::thread::spawn(move || {
-                std::thread::sleep(Duration::from_secs(1));
-                let mut dots = 0;
-                while !flag.load(Ordering::Relaxed) {
-                    eprint!("\r{what}{:<3}", ".".repeat(dots % 4));
-                    dots += 1;
-                    std::thread::sleep(Duration::from_millis(300));
-                }
-                eprint!("\r{:width$}\r", "", width = what.len() + 3);
-            });
-        }
-        Progress { done }
-    }
+/// A bar over `total` items (plans of a batch, say).
+pub fn bar(total: u64, what: &'static str) -> ProgressBar {
+    let bar = ProgressBar::with_draw_target(Some(total), target());
+    bar.set_style(
+        ProgressStyle::with_template("{msg} [{bar:30}] {pos}/{len} ({eta} left)")
+            .expect("template"),
+    );
+    bar.set_message(what);
+    bar
 }
 
-impl Drop for Progress {
-    fn drop(&mut self) {
-        self.done.store(true, Ordering::Relaxed);
+/// Drawn on stderr, at most four times a second, when it is a terminal; hidden otherwise, so pipes
+/// and CI logs stay clean.
+fn target() -> ProgressDrawTarget {
+    if std::io::stderr().is_terminal() {
+        ProgressDrawTarget::stderr_with_hz(4)
+    } else {
+        ProgressDrawTarget::hidden()
     }
 }

@@ -95,13 +95,13 @@ fn agrees_with_scipy_fixtures() {
             "{}: ours {ours} scipy {theirs}",
             case["name"]
         );
-        assert_eq!(got["x"].as_array().unwrap().len(), n);
+        assert_eq!(got["dwell_s"].as_array().unwrap().len(), n);
         assert!(got["kkt_residual"].as_f64().unwrap() < 1e-6);
     }
 }
 
 #[test]
-fn lines_output_has_ten_significant_digits_and_json_has_the_documented_fields() {
+fn text_output_is_plain_decimals_that_read_back_and_json_has_the_documented_fields() {
     let dir = scratch("format");
     // MathWorks lsqnonneg documentation example (see crates/solver/tests/worked_examples.rs).
     std::fs::write(
@@ -121,8 +121,9 @@ fn lines_output_has_ten_significant_digits_and_json_has_the_documented_fields() 
     assert_eq!(code, 0);
     let lines: Vec<&str> = out.lines().collect();
     assert_eq!(lines.len(), 2);
-    let mantissa = lines[1].split('e').next().unwrap().replace(['.', '-'], "");
-    assert!(mantissa.len() >= 10, "{}", lines[1]);
+    // Plain decimals, never exponent form, with every digit the value has.
+    assert!(!lines[1].contains(['e', 'E']), "{}", lines[1]);
+    assert!(lines[1].len() >= 12, "{}", lines[1]);
     assert!((lines[1].parse::<f64>().unwrap() - 0.6929344).abs() < 1e-6);
     let (_, out, _) = run(&[
         "--rates",
@@ -136,7 +137,7 @@ fn lines_output_has_ten_significant_digits_and_json_has_the_documented_fields() 
     ]);
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     for key in [
-        "x",
+        "dwell_s",
         "objective",
         "status",
         "iterations",

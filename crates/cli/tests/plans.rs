@@ -39,7 +39,7 @@ fn demo_solve_link_open_round_trip() {
         traycast(&[
             "simulate",
             p,
-            "--csv",
+            "--out",
             csv.to_str().unwrap(),
             "--schedule",
             sched.to_str().unwrap()
@@ -163,4 +163,114 @@ fn calibrate_writes_a_library_with_errors_and_a_quality_report() {
         "{err}"
     );
     std::fs::remove_dir_all(&dir).ok();
+}
+
+/// One command line: every command that prints results takes `--format json` and prints one JSON
+/// document; dwells are `dwell_s` and statuses are spelled as the solver spells them everywhere.
+#[test]
+fn every_result_command_speaks_json() {
+    let dir = std::env::temp_dir().join(format!("traycast-json-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = |name: &str| dir.join(name).to_str().unwrap().to_string();
+    let (plan, runs, lib, curves) = (
+        path("plan.json"),
+        path("runs.csv"),
+        path("lib.csv"),
+        path("curves.csv"),
+    );
+    assert_eq!(
+        traycast(&["demo", "side-by-side", "--out", &plan, "--runs", &runs]).0,
+        0
+    );
+    let json = |args: &[&str]| -> serde_json::Value {
+        let (code, out, err) = traycast(&[args, &["--format", "json"]].concat());
+        assert_eq!(code, 0, "{args:?}: {err}");
+        serde_json::from_str(&out).unwrap_or_else(|e| panic!("{args:?}: {e}\n{out}"))
+    };
+    assert_eq!(json(&["demo"])["demos"].as_array().unwrap().len(), 3);
+    let solved = json(&["solve", &plan]);
+    assert!(solved["dwell_s"].is_array() && solved["status"].is_string());
+    let cal = json(&["calibrate", &runs, "--layout", &plan, "--out", &lib]);
+    assert!(
+        cal["configurations"].as_array().unwrap().len() == 48,
+        "{cal}"
+    );
+    let checked = json(&["library", "check", &lib]);
+    assert_eq!(checked["valid"], true);
+    assert_eq!(checked["content_hash"], cal["library"]["content_hash"]);
+    let sim = json(&["simulate", &plan, "--out", &curves]);
+    assert!(sim["frames"].as_u64().unwrap() > 10);
+    // Text output never prints a status in the program's internal spelling.
+    let (_, text, _) = traycast(&["solve", &plan]);
+    assert!(
+        !text.contains("BudgetBinding") && !text.contains("Optimal"),
+        "{text}"
+    );
+}
+
+/// `library export` writes the maps a plan is evaluated on, and they read back as a library.
+#[test]
+fn library_export_writes_the_plan_maps() {
+    let dir = std::env::temp_dir().join(format!("traycast-export-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let plan = dir.join("plan.json").display().to_string();
+    let maps = dir.join("maps.csv").display().to_string();
+    assert_eq!(traycast(&["demo", "lunch-tray", "--out", &plan]).0, 0);
+    let (code, _, err) = traycast(&["library", "export", &plan, "--out", &maps]);
+    assert_eq!(code, 0, "{err}");
+    let text = std::fs::read_to_string(&maps).unwrap();
+    assert!(text.starts_with("# traycast-maps 1"), "{text:.200}");
+    let (code, out, err) = traycast(&["library", "check", &maps]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("valid"));
+}
+
+/// `batch` evaluates every plan, on 1 and on 2 threads alike, and a bad plan is a line of its
+/// own, not the end of the batch (exit 2 after writing everything).
+#[test]
+fn batch_evaluates_every_plan_and_reports_failures_in_line() {
+    let dir = std::env::temp_dir().join(format!("traycast-batch-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = |name: &str| dir.join(name).display().to_string();
+    let mut plans = Vec::new();
+    for d in ["lunch-tray", "frozen-portion", "side-by-side"] {
+        let p = path(&format!("{d}.json"));
+        assert_eq!(traycast(&["demo", d, "--out", &p]).0, 0);
+        plans.push(p);
+    }
+    let mut outputs = Vec::new();
+    for threads in ["1", "2"] {
+        let out = path(&format!("summary-{threads}.jsonl"));
+        let args: Vec<&str> = ["batch"]
+            .into_iter()
+            .chain(plans.iter().map(String::as_str))
+            .chain(["--out", &out, "--threads", threads])
+            .collect();
+        let (code, _, err) = traycast(&args);
+        assert_eq!(code, 0, "{err}");
+        assert!(err.contains("3 evaluations"), "{err}");
+        outputs.push(std::fs::read_to_string(&out).unwrap());
+    }
+    assert_eq!(outputs[0], outputs[1], "thread count changes nothing");
+    assert_eq!(outputs[0].lines().count(), 3);
+    let csv = path("summary.csv");
+    let bad = path("bad.json");
+    std::fs::write(&bad, "{ not a plan").unwrap();
+    let (code, _, err) = traycast(&["batch", &plans[0], &bad, "--out", &csv]);
+    assert_eq!(code, 2, "{err}");
+    let table = std::fs::read_to_string(&csv).unwrap();
+    assert!(
+        table.starts_with("plan_file,maps,status,total_s,item"),
+        "{table}"
+    );
+    assert!(
+        table
+            .lines()
+            .any(|l| l.contains("bad.json") && l.contains("line 1")),
+        "{table}"
+    );
+    assert!(
+        table.contains("thermometer"),
+        "the cautions travel with the summary"
+    );
 }

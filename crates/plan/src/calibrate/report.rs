@@ -257,3 +257,49 @@ impl Calibration {
         out
     }
 }
+
+impl QualityReport {
+    /// The report as JSON: the same facts as [`QualityReport::to_text`], by name (no value: null).
+    pub fn to_json(&self) -> serde_json::Value {
+        let num = |v: f64| {
+            if v.is_finite() {
+                serde_json::json!(v)
+            } else {
+                serde_json::Value::Null
+            }
+        };
+        serde_json::json!({
+            "runs_file": self.name,
+            "layout": self.layout,
+            "runs": self.runs,
+            "readings": self.readings,
+            "ignored_readings": self.ignored,
+            "sensor_lag_s": self.sensor_lag_s.iter().map(|(run, tau)| serde_json::json!({"run": run, "tau_s": num(*tau)})).collect::<Vec<_>>(),
+            "configurations": self.configs.iter().map(|q| serde_json::json!({
+                "config": q.config,
+                "runs": q.runs,
+                "probes": q.probes,
+                "measured_cells": q.measured,
+                "filled_cells": q.filled,
+                "median_r2": num(q.median_r2),
+                "median_relative_se": num(q.median_relative_se),
+                "outliers": q.outliers,
+                "suspect_probes": q.suspect,
+                "repeat": q.repeat.as_ref().map(|r| serde_json::json!({
+                    "cells": r.cells,
+                    "median_relative_difference": num(r.median_relative_difference),
+                    "disagreeing": r.disagreeing,
+                })),
+            })).collect::<Vec<_>>(),
+            "notes": self.notes.iter().map(|n| serde_json::json!({
+                "config": n.config,
+                "row": n.cell / self.width.max(1),
+                "col": n.cell % self.width.max(1),
+                "run": n.run,
+                "line": n.line,
+                "kind": n.kind.as_str(),
+                "detail": n.detail,
+            })).collect::<Vec<_>>(),
+        })
+    }
+}

@@ -1,0 +1,233 @@
+//! The commands that evaluate a plan: `solve` (dwells, zones, verdicts, baseline) and `simulate`
+//! (the time course per food item, and the controller schedule).
+
+use crate::error::CliError;
+use crate::format::{Format, num, print_json};
+use crate::plans::{load_library, load_plan, write};
+use crate::progress;
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+use traycast_plan::evaluate::{self, Evaluation, Options};
+use traycast_plan::model::Plan;
+use traycast_plan::wire;
+
+/// Arguments of `traycast solve`.
+#[derive(clap::Args)]
+pub struct SolveArgs {
+    /// Plan JSON file.
+    pub plan: PathBuf,
+    /// Map library (CSV or JSON) for plans that use one.
+    #[arg(long)]
+    pub library: Option<PathBuf>,
+    /// `text` (a report) or `json` (the evaluation summary).
+    #[arg(long, value_enum, default_value_t)]
+    pub format: Format,
+    /// Re-solve with the simulation's correction.
+    #[arg(long)]
+    pub refine: bool,
+}
+
+/// Arguments of `traycast simulate`.
+#[derive(clap::Args)]
+pub struct SimulateArgs {
+    /// Plan JSON file.
+    pub plan: PathBuf,
+    /// Map library (CSV or JSON) for plans that use one.
+    #[arg(long)]
+    pub library: Option<PathBuf>,
+    /// Where to write the curves: CSV of min/mean/max per food item over time.
+    #[arg(long)]
+    pub out: PathBuf,
+    /// Also write the controller schedule CSV here.
+    #[arg(long)]
+    pub schedule: Option<PathBuf>,
+    /// What to print when done: `text` or `json`.
+    #[arg(long, value_enum, default_value_t)]
+    pub format: Format,
+}
+
+/// Reads a plan (and its library) and evaluates it.
+pub fn evaluate_file(
+    plan_path: &Path,
+    library: Option<&Path>,
+    refine: bool,
+) -> Result<(Plan, Evaluation), CliError> {
+    let plan = load_plan(plan_path)?;
+    let lib = library.map(load_library).transpose()?;
+    let spinner = progress::spinner("evaluating the plan");
+    let eval = evaluate::evaluate(&plan, lib.as_ref(), Options { refine })
+        .map_err(|e| CliError::at(plan_path, 0, 0, e))?;
+    spinner.finish_and_clear();
+    Ok((plan, eval))
+}
+
+/// `traycast solve PLAN [--library FILE] [--format text|json] [--refine]`.
+pub fn solve(args: &SolveArgs) -> Result<(), CliError> {
+    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), args.refine)?;
+    match args.format {
+        Format::Json => print_json(&traycast_plan::summary::to_json(&p, &e)),
+        Format::Text => print!("{}", report(&p, &e)),
+    }
+    Ok(())
+}
+
+/// A number for the simulation CSV: two decimals, or an empty field where there is no value.
+fn exact2(v: f64) -> String {
+    if v.is_finite() {
+        format!("{v:.2}")
+    } else {
+        String::new()
+    }
+}
+
+fn report(plan: &Plan, e: &Evaluation) -> String {
+    let mut s = String::new();
+    let _ = writeln!(s, "{}", plan.name);
+    let _ = writeln!(
+        s,
+        "Total heating {:.1} s in {} steps, then {:.0} s standing (solver: {})",
+        e.total_s,
+        e.schedule.steps.len(),
+        plan.oven.standing_s,
+        e.status.as_str()
+    );
+    let _ = writeln!(s, "\nDwell per configuration (s):");
+    for (j, d) in e.dwell.iter().enumerate().filter(|(_, d)| **d > 0.0) {
+        let _ = writeln!(s, "  {j:>4}  {d:>8.1}");
+    }
+    let _ = writeln!(
+        s,
+        "\n{:<28} {:>9} {:>9} {:>9} {:>9}",
+        "zone", "in band", "in band", "RMS off", "RMS off"
+    );
+    let _ = writeln!(
+        s,
+        "{:<28} {:>9} {:>9} {:>9} {:>9}",
+        "", "linear", "simul.", "linear K", "simul. K"
+    );
+    for (z, r) in plan.zones.iter().zip(&e.zones) {
+        let _ = writeln!(
+            s,
+            "{:<28} {:>8.0}% {:>8.0}% {:>9.1} {:>9.1}",
+            z.name,
+            100.0 * r.coverage_linear,
+            100.0 * r.coverage_simulated,
+            r.rms_linear,
+            r.rms_simulated
+        );
+        if let Some(d) = &r.diagnosis {
+            let _ = writeln!(s, "    {d}");
+        }
+    }
+    let _ = writeln!(
+        s,
+        "\n{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  rule",
+        "food item (after standing)", "min °C", "mean", "max", "verdict", "margin K"
+    );
+    for (it, r) in plan.items.iter().zip(&e.items) {
+        let v = &r.verdict;
+        let _ = writeln!(
+            s,
+            "{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  {}{}",
+            it.name,
+            num(r.min, 1),
+            num(r.mean, 1),
+            num(r.max, 1),
+            if v.safe { "meets" } else { "FAILS" },
+            num(v.margin, 1),
+            v.binding.source,
+            if v.short_stand {
+                " (standing shorter than the rule assumes)"
+            } else {
+                ""
+            }
+        );
+        if let Some(sp) = &r.spread {
+            let _ = writeln!(
+                s,
+                "    95 % from the maps' errors: coldest {:.1}–{:.1}, mean {:.1}–{:.1}, warmest {:.1}–{:.1} °C; verdict judged on these bounds (nominal: {} {:+.1} K)",
+                sp.coldest.0,
+                sp.coldest.1,
+                sp.mean.0,
+                sp.mean.1,
+                sp.warmest.0,
+                sp.warmest.1,
+                if sp.nominal.safe { "meets" } else { "fails" },
+                sp.nominal.margin
+            );
+        }
+    }
+    let _ = writeln!(
+        s,
+        "\nUnsteered baseline: {:.0} s, {:.0}% of targeted cells in band, RMS {:.1} K off (linear)",
+        e.baseline.seconds,
+        100.0 * e.baseline.coverage_linear,
+        e.baseline.rms_linear
+    );
+    if let Some(r) = &e.refinement {
+        let _ = writeln!(
+            s,
+            "Refinement: RMS after standing {:.2} → {:.2} K ({})",
+            r.rms_before,
+            r.rms_after,
+            if r.kept { "kept" } else { "no gain, not kept" }
+        );
+    }
+    for w in &e.warnings {
+        let _ = writeln!(s, "Note: {w}");
+    }
+    let _ = writeln!(s, "\nCautions:");
+    for c in e.cautions {
+        let _ = writeln!(s, "  - {c}");
+    }
+    s
+}
+
+/// `traycast simulate PLAN --out CURVES.csv [--schedule OUT] [--format text|json]`.
+pub fn simulate(args: &SimulateArgs) -> Result<(), CliError> {
+    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), false)?;
+    let mut out = String::new();
+    for c in e.cautions {
+        let _ = writeln!(out, "# {c}");
+    }
+    out.push_str("time_s,item,min_c,mean_c,max_c\n");
+    for (t, time) in e.course.times.iter().enumerate() {
+        for (k, it) in p.items.iter().enumerate() {
+            let c = &e.course.items[k];
+            let name = if it.name.contains([',', '"']) {
+                format!("\"{}\"", it.name.replace('"', "\"\""))
+            } else {
+                it.name.clone()
+            };
+            // An item with no cells has no temperature: an empty field, never NaN.
+            let _ = writeln!(
+                out,
+                "{time:.1},{name},{},{},{}",
+                exact2(c.min[t]),
+                exact2(c.mean[t]),
+                exact2(c.max[t])
+            );
+        }
+    }
+    write(&args.out, &out)?;
+    if let Some(path) = &args.schedule {
+        write(path, &wire::schedule_csv(&p, &e.schedule))?;
+    }
+    match args.format {
+        Format::Text => println!(
+            "wrote {} frames for {} food items to {}",
+            e.course.times.len(),
+            p.items.len(),
+            args.out.display()
+        ),
+        Format::Json => print_json(&serde_json::json!({
+            "frames": e.course.times.len(),
+            "items": p.items.len(),
+            "heating_s": e.course.heating_seconds,
+            "standing_s": e.course.standing_seconds,
+            "out": args.out.display().to_string(),
+            "cautions": e.cautions,
+        })),
+    }
+    Ok(())
+}
