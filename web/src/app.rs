@@ -476,11 +476,14 @@ pub fn App() -> impl IntoView {
     let on_import_library = move |ev: leptos::ev::Event| {
         read_picked_file(&ev, notice, move |text| match MapLibrary::parse(&text) {
             Ok(lib) => {
-                let (name, configs) = (lib.name.clone(), lib.configs);
+                let (name, configs, hash) = (lib.name.clone(), lib.configs, lib.content_hash());
                 library.set(Some(lib));
                 library_rev.update(|r| *r += 1);
                 edit(&|p| {
-                    p.maps = MapSource::Library { name: name.clone() };
+                    p.maps = MapSource::Library {
+                        name: name.clone(),
+                        hash: Some(hash),
+                    };
                     p.oven.configs = configs;
                 });
                 notice.set(Some(format!("Map library '{name}' imported.")));
@@ -499,12 +502,17 @@ pub fn App() -> impl IntoView {
                 });
             match result {
                 Ok((table, cal)) => {
-                    let name = cal.library.name.clone();
+                    let (name, hash) = (cal.library.name.clone(), cal.library.content_hash());
                     let runs = cal.report.runs;
                     library.set(Some(cal.library));
                     library_rev.update(|r| *r += 1);
                     quality.set(Some((cal.report, table)));
-                    edit(&|p| p.maps = MapSource::Library { name: name.clone() });
+                    edit(&|p| {
+                        p.maps = MapSource::Library {
+                            name: name.clone(),
+                            hash: Some(hash),
+                        }
+                    });
                     notice.set(Some(format!("Calibrated '{name}' from {runs} runs on this tray; the quality report is under the outcome.")));
                 }
                 Err(e) => notice.set(Some(format!(

@@ -121,6 +121,7 @@ fn evaluate_job(job: &Job) -> Result<(Plan, Evaluation), String> {
         // Evaluated on this library on purpose: the plan is pointed at it.
         plan.maps = MapSource::Library {
             name: lib.name.clone(),
+            hash: None,
         };
         lib
     });

@@ -99,6 +99,10 @@ pub enum MapSource {
     Library {
         /// Library name.
         name: String,
+        /// The library's content hash ([`crate::library::MapLibrary::content_hash`]) when the plan
+        /// was pointed at it; `None` in plans from before it was recorded (then only the name is
+        /// checked).
+        hash: Option<u64>,
     },
 }
 

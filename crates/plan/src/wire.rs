@@ -1,5 +1,6 @@
-//! File and link formats of our own: plan JSON ("traycast-plan" version 1), the share link
-//! ("tc1." + URL-safe base64 of deflated postcard bytes), and the controller schedule CSV.
+//! File and link formats of our own: plan JSON ("traycast-plan" version 2; version 1 is read), the
+//! share link ("tc2." + URL-safe base64 of deflated postcard bytes, a trailer after the plan
+//! carrying the library's content hash; "tc1." links are read), and the controller schedule CSV.
 //!
 //! These types are the boundary: versioned, separate from [`crate::model`], and every field is
 //! validated on the way in. Untrusted input becomes a [`PlanError`], never a panic.
@@ -12,9 +13,14 @@ use traycast_thermal::safety::CAUTIONS;
 use traycast_thermal::schedule::Schedule;
 
 const FORMAT: &str = "traycast-plan";
-const VERSION: u32 = 1;
+/// The version written. Version 2 added the library's content hash; version 1 is still read.
+const VERSION: u32 = 2;
+/// Versions read.
+const READS: [u32; 2] = [1, 2];
 /// Prefix of a share link's payload (format tag and version).
-pub const LINK_TAG: &str = "tc1.";
+pub const LINK_TAG: &str = "tc2.";
+/// The first link format, still read: the same payload without the trailer.
+pub const LINK_TAG_V1: &str = "tc1.";
 /// Longest link payload accepted, characters.
 pub const MAX_LINK: usize = 64 * 1024;
 /// Largest decompressed plan accepted, bytes (a bound against decompression bombs).
@@ -36,6 +42,37 @@ struct PlanDoc {
     zone: Vec<String>,
     oven: OvenDoc,
     maps: MapsDoc,
+}
+
+/// The plan file: the plan document and, since version 2, the library's content hash (hex).
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct PlanFile {
+    #[serde(flatten)]
+    doc: PlanDoc,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    library_hash: Option<String>,
+}
+
+/// What a version-2 link carries after the plan document (postcard is positional, so additions go
+/// in a trailer that version-1 links simply lack).
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq, Default)]
+struct LinkTrailer {
+    library_hash: Option<u64>,
+}
+
+fn library_hash(plan: &Plan) -> Option<u64> {
+    match plan.maps {
+        MapSource::Library { hash, .. } => hash,
+        MapSource::Synthetic { .. } => None,
+    }
+}
+
+/// Adds the library hash read from a file or link to a plan pointed at a library.
+fn with_hash(mut plan: Plan, hash: Option<u64>) -> Plan {
+    if let MapSource::Library { hash: h, .. } = &mut plan.maps {
+        *h = hash;
+    }
+    plan
 }
 
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
@@ -192,7 +229,7 @@ impl From<&Plan> for PlanDoc {
                     seed: *seed,
                     library: None,
                 },
-                MapSource::Library { name } => MapsDoc {
+                MapSource::Library { name, .. } => MapsDoc {
                     source: "library".into(),
                     seed: 0,
                     library: Some(name.clone()),
@@ -212,12 +249,12 @@ impl TryFrom<PlanDoc> for Plan {
                 format!("'{}' is not a Traycast plan", d.format),
             ));
         }
-        if d.version != VERSION {
+        if !READS.contains(&d.version) {
             return Err(PlanError::new(
                 "version",
                 format!(
-                    "plan format version {} is not supported (this version reads {VERSION})",
-                    d.version
+                    "plan format version {} is not supported (this version reads {} to {VERSION})",
+                    d.version, READS[0]
                 ),
             ));
         }
@@ -247,6 +284,7 @@ impl TryFrom<PlanDoc> for Plan {
                     .maps
                     .library
                     .ok_or_else(|| PlanError::new("maps.library", "missing library name"))?,
+                hash: None,
             },
             other => {
                 return Err(PlanError::new(
@@ -308,19 +346,36 @@ impl TryFrom<PlanDoc> for Plan {
 
 /// The plan as JSON (pretty-printed, stable field order).
 pub fn to_json(plan: &Plan) -> String {
-    serde_json::to_string_pretty(&PlanDoc::from(plan)).expect("plans serialise")
+    let file = PlanFile {
+        doc: PlanDoc::from(plan),
+        library_hash: library_hash(plan).map(|h| format!("{h:016x}")),
+    };
+    serde_json::to_string_pretty(&file).expect("plans serialise")
 }
 
 /// Reads a plan JSON file; the error names the line or the field.
 pub fn from_json(text: &str) -> Result<Plan, PlanError> {
     crate::error::check_length("plan file", text, MAX_PLAN_JSON)?;
-    let doc: PlanDoc = serde_json::from_str(text).map_err(PlanError::json)?;
-    Plan::try_from(doc)
+    let file: PlanFile = serde_json::from_str(text).map_err(PlanError::json)?;
+    let hash = match &file.library_hash {
+        None => None,
+        Some(hex) => Some(u64::from_str_radix(hex, 16).map_err(|_| {
+            PlanError::new(
+                "library_hash",
+                format!("'{hex}' is not a library content hash (16 hexadecimal digits)"),
+            )
+        })?),
+    };
+    Ok(with_hash(Plan::try_from(file.doc)?, hash))
 }
 
 /// The share-link payload for the URL fragment.
 pub fn to_link(plan: &Plan) -> String {
-    let bytes = postcard::to_allocvec(&PlanDoc::from(plan)).expect("plans serialise");
+    let mut bytes = postcard::to_allocvec(&PlanDoc::from(plan)).expect("plans serialise");
+    let trailer = LinkTrailer {
+        library_hash: library_hash(plan),
+    };
+    bytes.extend(postcard::to_allocvec(&trailer).expect("trailers serialise"));
     let packed = miniz_oxide::deflate::compress_to_vec(&bytes, 9);
     format!(
         "{LINK_TAG}{}",
@@ -338,16 +393,20 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
             link.len()
         )));
     }
-    let Some(body) = link.strip_prefix(LINK_TAG) else {
-        if link.starts_with("tc") && link.contains('.') {
+    let (body, v1) = match (link.strip_prefix(LINK_TAG), link.strip_prefix(LINK_TAG_V1)) {
+        (Some(body), _) => (body, false),
+        (None, Some(body)) => (body, true),
+        (None, None) => {
+            if link.starts_with("tc") && link.contains('.') {
+                return Err(at(format!(
+                    "uses format '{}', which this version cannot read (it reads '{LINK_TAG}')",
+                    link.split('.').next().unwrap_or("")
+                )));
+            }
             return Err(at(format!(
-                "uses format '{}', which this version cannot read (it reads '{LINK_TAG}')",
-                link.split('.').next().unwrap_or("")
+                "is not a Traycast plan link (it should start with '{LINK_TAG}')"
             )));
         }
-        return Err(at(
-            "is not a Traycast plan link (it should start with 'tc1.')".into(),
-        ));
     };
     let packed = base64::engine::general_purpose::URL_SAFE_NO_PAD
         .decode(body)
@@ -363,9 +422,16 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
             at("is damaged (its compressed data is incomplete or corrupt); it may have been cut off when copied".into())
         }
     })?;
-    let doc: PlanDoc = postcard::from_bytes(&bytes)
-        .map_err(|e| at(format!("holds data this version cannot read ({e})")))?;
-    Plan::try_from(doc).map_err(|e| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message))
+    let unreadable = |e: postcard::Error| at(format!("holds data this version cannot read ({e})"));
+    let (doc, rest): (PlanDoc, &[u8]) = postcard::take_from_bytes(&bytes).map_err(unreadable)?;
+    let trailer = if v1 {
+        LinkTrailer::default()
+    } else {
+        postcard::from_bytes(rest).map_err(unreadable)?
+    };
+    let plan = Plan::try_from(doc)
+        .map_err(|e| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message))?;
+    Ok(with_hash(plan, trailer.library_hash))
 }
 
 /// The schedule as CSV a controller can run: step, configuration, start and duration in seconds,

@@ -76,6 +76,7 @@ fn layout() -> Plan {
     p.oven.configs = 4;
     p.maps = MapSource::Library {
         name: "calibrated".into(),
+        hash: None,
     };
     p
 }
@@ -522,6 +523,7 @@ fn demo_runs_calibrate_back_to_the_field_model() {
     let mut on_lib = plan.clone();
     on_lib.maps = MapSource::Library {
         name: cal.library.name.clone(),
+        hash: None,
     };
     let e = evaluate::evaluate(&on_lib, Some(&cal.library), Options::default()).unwrap();
     for it in &e.items {
@@ -549,6 +551,7 @@ fn interval_propagation_matches_sampling() {
     let mut p = plan.clone();
     p.maps = MapSource::Library {
         name: lib.name.clone(),
+        hash: None,
     };
     let e = evaluate::evaluate(&p, Some(&lib), Options::default()).unwrap();
     let maps = evaluate::maps_for(&p, Some(&lib)).unwrap();
@@ -601,6 +604,7 @@ fn the_safety_verdict_is_judged_on_the_lower_bound() {
     let mut p = plan.clone();
     p.maps = MapSource::Library {
         name: lib.name.clone(),
+        hash: None,
     };
     let with = |lib: &traycast_plan::library::MapLibrary| {
         evaluate::evaluate(&p, Some(lib), Options::default()).unwrap()

@@ -63,6 +63,7 @@ fn plan_strategy() -> impl Strategy<Value = Plan> {
             p.maps = if seed % 5 == 0 {
                 MapSource::Library {
                     name: "kitchen".into(),
+                    hash: None,
                 }
             } else {
                 MapSource::Synthetic { seed }
@@ -108,7 +109,7 @@ fn hostile_links_get_a_clear_message() {
     let plan = demos::demo("side-by-side").unwrap();
     let good = wire::to_link(&plan);
     let msg = |l: &str| wire::from_link(l).unwrap_err().to_string();
-    assert!(msg(&good.replacen("tc1.", "tc2.", 1)).contains("cannot read"));
+    assert!(msg(&good.replacen(wire::LINK_TAG, "tc9.", 1)).contains("cannot read"));
     assert!(msg("hello").contains("not a Traycast plan link"));
     assert!(
         msg(&good[..good.len() / 2]).contains("damaged")
@@ -273,6 +274,50 @@ fn load_matching_reports_the_replay_window() {
     assert_eq!(lib.best_match(&other).unwrap().window, Window::Outside);
 }
 
+/// Version 1 files and links (written before the library hash was recorded) still open, as the
+/// same plan; a plan pointed at a library carries the library's content hash through both forms.
+#[test]
+fn old_formats_open_and_the_library_hash_travels() {
+    let fixture =
+        |f: &str| std::fs::read_to_string(format!("../../tests/fixtures/plans/{f}")).unwrap();
+    let from_file = wire::from_json(&fixture("side-by-side-v1.json")).unwrap();
+    let from_link = wire::from_link(fixture("side-by-side-v1.link").trim()).unwrap();
+    assert_eq!(from_file, from_link);
+    assert_eq!(from_file, demos::demo("side-by-side").unwrap());
+    let on_lib = wire::from_json(&fixture("on-library-v1.json")).unwrap();
+    assert_eq!(
+        on_lib.maps,
+        MapSource::Library {
+            name: "kitchen".into(),
+            hash: None
+        }
+    );
+    assert_eq!(
+        wire::from_link(fixture("on-library-v1.link").trim()).unwrap(),
+        on_lib
+    );
+    // Version 2 carries the hash, in the file and in the link.
+    let mut pinned = on_lib.clone();
+    pinned.maps = MapSource::Library {
+        name: "kitchen".into(),
+        hash: Some(0x0123_4567_89ab_cdef),
+    };
+    let json = wire::to_json(&pinned);
+    assert!(
+        json.contains("\"library_hash\": \"0123456789abcdef\""),
+        "{json}"
+    );
+    assert_eq!(wire::from_json(&json).unwrap(), pinned);
+    let link = wire::to_link(&pinned);
+    assert!(link.starts_with(wire::LINK_TAG));
+    assert_eq!(wire::from_link(&link).unwrap(), pinned);
+    let bad = json.replace("0123456789abcdef", "not-hex");
+    assert_eq!(
+        wire::from_json(&bad).unwrap_err().place,
+        Place::from("library_hash")
+    );
+}
+
 /// The plan names its library: a library of another name is refused, never solved on silently;
 /// the evaluator's caches follow a library replaced by one with other content.
 #[test]
@@ -297,6 +342,7 @@ fn a_plan_is_only_solved_on_the_library_it_names() {
     plan.oven.configs = 2;
     plan.maps = MapSource::Library {
         name: "kitchen".into(),
+        hash: None,
     };
     let on_kitchen = evaluate::evaluate(&plan, Some(&lib), Options::default()).unwrap();
     let mut other = lib.clone();
@@ -307,6 +353,19 @@ fn a_plan_is_only_solved_on_the_library_it_names() {
         e.message.contains("kitchen") && e.message.contains("bench oven 2"),
         "{e}"
     );
+    // Pinned to the library's content: the same content passes, other content under the same
+    // name is refused, never solved on silently.
+    let mut pinned = plan.clone();
+    pinned.maps = MapSource::Library {
+        name: "kitchen".into(),
+        hash: Some(lib.content_hash()),
+    };
+    assert!(evaluate::evaluate(&pinned, Some(&lib), Options::default()).is_ok());
+    let mut edited = lib.clone();
+    edited.loads[0].rates[0] += 0.01;
+    let e = evaluate::evaluate(&pinned, Some(&edited), Options::default()).unwrap_err();
+    assert_eq!(e.place, Place::from("maps.library"), "{e}");
+    assert!(e.message.contains("other maps"), "{e}");
     // Same name, other content: the evaluator drops its maps and uses the new rates.
     let mut ev = Evaluator::with_library(Some(lib.clone()));
     let first = ev.quick(&plan).unwrap();

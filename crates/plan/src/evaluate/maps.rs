@@ -72,6 +72,15 @@ fn start_absorption(plan: &Plan, mats: &[Material]) -> Vec<f64> {
 
 /// The plan's heating maps: from the field model, or the best-matching load of `library`.
 pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, PlanError> {
+    maps_with(plan, library, None)
+}
+
+/// [`maps_for`], with the library's content hash when the caller already knows it.
+pub(super) fn maps_with(
+    plan: &Plan,
+    library: Option<&MapLibrary>,
+    library_hash: Option<u64>,
+) -> Result<PlanMaps, PlanError> {
     let mats = materials(plan)?;
     let absorb = start_absorption(plan, &mats);
     let n = plan.tray.cells();
@@ -114,7 +123,7 @@ pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, P
                 provenance: Provenance::Synthetic,
             })
         }
-        MapSource::Library { name } => {
+        MapSource::Library { name, hash } => {
             let lib = library.ok_or_else(|| {
                 PlanError::new(
                     "maps",
@@ -131,6 +140,17 @@ pub fn maps_for(plan: &Plan, library: Option<&MapLibrary>) -> Result<PlanMaps, P
                         lib.name, lib.name
                     ),
                 ));
+            }
+            if let Some(want) = hash {
+                let loaded = library_hash.unwrap_or_else(|| lib.content_hash());
+                if loaded != *want {
+                    return Err(PlanError::new(
+                        "maps.library",
+                        format!(
+                            "the plan was made with other maps under the name '{name}' (content {want:016x}; the library loaded holds {loaded:016x}): load the library the plan was made with, or point the plan at this one on purpose (import it in the workbench)"
+                        ),
+                    ));
+                }
             }
             if lib.width != plan.tray.width || lib.height != plan.tray.height {
                 return Err(PlanError::new(
@@ -215,9 +235,10 @@ pub(super) fn maps_hash(plan: &Plan) -> u64 {
             h.word(1);
             h.word(*seed);
         }
-        MapSource::Library { name } => {
+        MapSource::Library { name, hash } => {
             h.word(2);
             h.bytes(name.as_bytes());
+            h.word(hash.map_or(0, |v| v ^ 1));
         }
     }
     h.finish()

@@ -98,7 +98,8 @@ impl Evaluator {
             self.maps_key = None;
             self.solver = None;
             self.mats = materials(plan)?;
-            self.maps = Some(maps_for(plan, self.library.as_ref())?);
+            let hash = self.library.as_ref().map(|_| self.library_hash);
+            self.maps = Some(maps::maps_with(plan, self.library.as_ref(), hash)?);
             self.maps_key = Some(key);
         }
         Ok(self.maps.as_ref().expect("just set"))
