@@ -28,7 +28,7 @@ fn bench(c: &mut Criterion) {
             for s in &runs.series {
                 let (t, y): (Vec<f64>, Vec<f64>) =
                     s.readings.iter().map(|r| (r.t, r.temp_c)).unzip();
-                black_box(traycast_plan::regression::line(&t, &y));
+                black_box(traycast_plan::calibrate::fit_line(&t, &y));
             }
         })
     });

@@ -7,14 +7,17 @@
 //! - [`library`]: measured map libraries — CSV and JSON import/export, validation (units, scale),
 //!   load matching and the replay window.
 //! - [`runs`]: recorded heating runs (CSV, °C or confirmed °F) read against a load's layout.
-//! - [`calibrate`]: runs → map library with standard errors, fill flags and a quality report;
-//!   [`regression`] holds the least-squares line and curvature test it uses.
+//! - [`calibrate`]: runs → map library with standard errors, fill flags and a quality report,
+//!   with the least-squares line it fits ([`calibrate::fit_line`]).
 //! - [`evaluate`]: plan + maps → dwell solve → linear prediction → simulated time course →
 //!   errors, band coverage, coldest-cell verdicts, unsteered baseline, feasibility diagnosis.
 //! - [`robustness`]: the plan's schedule with the foods placed one cell off.
 //! - [`wire`]: plan JSON, share links, schedule CSV — versioned boundary formats.
 //! - [`summary`]: the evaluation as one JSON object, shared by the command line and the workbench.
 //! - [`demos`]: illustrative demo scenarios.
+//!
+//! Implementation details (the CSV reader, fingerprints, regression helpers, each pipeline step)
+//! are private; every public module curates what front ends need with `pub use`.
 //!
 //! No files, no DOM: everything takes and returns values, strings and bytes.
 //!
@@ -29,6 +32,7 @@
 //! let link = wire::to_link(&plan);
 //! assert_eq!(wire::from_link(&link).unwrap(), plan);
 //! ```
+#![deny(missing_docs)]
 
 pub mod calibrate;
 mod csvtext;
@@ -39,7 +43,7 @@ pub mod field;
 mod fingerprint;
 pub mod library;
 pub mod model;
-pub mod regression;
+mod regression;
 pub mod robustness;
 pub mod runs;
 pub mod summary;

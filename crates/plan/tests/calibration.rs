@@ -5,11 +5,11 @@
 
 use traycast_plan::Place;
 use traycast_plan::calibrate::{self, NoteKind, Settings};
+use traycast_plan::demos;
 use traycast_plan::evaluate::{self, Options};
 use traycast_plan::library::RateBasis;
 use traycast_plan::model::{FoodItem, MapSource, Plan};
 use traycast_plan::runs::{HeatingRuns, ReadOptions};
-use traycast_plan::{demos, regression};
 use traycast_rng::SplitMix;
 
 #[test]
@@ -34,7 +34,7 @@ fn line_fits_match_scipy_linregress() {
     };
     for c in cases {
         let (x, y) = (v(c, "x"), v(c, "y"));
-        let f = regression::line(&x, &y).unwrap();
+        let f = calibrate::fit_line(&x, &y).unwrap();
         let close = |ours: f64, key: &str| {
             let theirs = c[key].as_f64().unwrap();
             assert!(
@@ -517,7 +517,8 @@ fn demo_runs_calibrate_back_to_the_field_model() {
             rel.push((load.rates[k] - r).abs() / r.max(1e-9));
         }
     }
-    let median = regression::median(&mut rel);
+    rel.sort_by(f64::total_cmp);
+    let median = rel[rel.len() / 2];
     assert!(median < 0.05, "median relative difference {median}");
     // The plan evaluated on the calibrated library shows intervals and judges on them.
     let mut on_lib = plan.clone();

@@ -44,6 +44,7 @@
 //! assert!(sol.kkt_residual < 1e-8);
 //! assert!(matches!(sol.status, Status::Optimal | Status::BudgetBinding));
 //! ```
+#![deny(missing_docs)]
 
 mod boxqp;
 mod error;

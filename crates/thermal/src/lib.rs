@@ -29,6 +29,7 @@
 //! let course = simulate(&load, &maps, &Schedule::blocks(&[60.0]), &Settings::default()).unwrap();
 //! assert!(course.end_of_heating[0] > 30.0 && course.end_of_heating[0] < 36.0);
 //! ```
+#![deny(missing_docs)]
 
 pub mod catalogue;
 pub mod choi_okos;

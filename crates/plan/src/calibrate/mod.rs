@@ -26,7 +26,7 @@
 //! 5. readings more than [`Settings::outlier_sigmas`] robust standard deviations
 //!    (1.4826 × median absolute residual) off the line are dropped as outliers at each step.
 //!
-//! The slope's standard error is the ordinary least-squares one (see [`crate::regression`]).
+//! The slope's standard error is the ordinary least-squares one (see [`fit_line`]).
 //! Several estimates of one cell and configuration (a configuration run twice, two probes in one
 //! cell) are combined by inverse-variance weighting; when they disagree more than their errors
 //! allow, the combined error is widened by the Birge ratio √(χ²/(k − 1)).
@@ -40,6 +40,7 @@ mod fill;
 mod fit;
 mod report;
 
+pub use crate::regression::{LineFit, line as fit_line};
 pub use fit::{MAX_LAG_S, ProbeFit, fit_series, sensor_lag};
 pub use report::{ConfigQuality, Note, NoteKind, QualityReport, Repeatability};
 
