@@ -659,21 +659,28 @@ impl DwellSolver {
         it.budget += 1;
         ok &= self.newton(spec, upper, probe, it);
         let s = total(self);
-        if s <= 0.0 {
-            let saved = (self.vars.clone(), self.z.clone(), self.z_stale);
-            ok &= self.newton(spec, upper, 0.0, it);
-            if total(self) > 0.0 {
-                (self.vars, self.z, self.z_stale) = saved;
-                self.reclassify(spec);
-            }
-            self.nu = 0.0;
-            return ok;
-        }
-        let (mut lo, mut s_lo) = (probe, s);
         // The last solutions on each side of the root, with their true excess Σx − T.
-        let mut x_lo = (self.vars.x.clone(), s);
+        let (mut lo, mut s_lo, mut x_lo);
         let mut x_hi: Option<(Vec<f64>, f64)> = None;
         let mut have_hi_solution = false;
+        if s <= 0.0 {
+            let at_probe = (self.vars.x.clone(), s);
+            ok &= self.newton(spec, upper, 0.0, it);
+            let s0 = total(self);
+            if s0 <= 0.0 {
+                self.nu = 0.0;
+                return ok;
+            }
+            // Σx(0) > T ≥ Σx(probe): the root lies between 0 and the probe (a flat objective, a
+            // small ridge, makes Σx steep in ν). Search there; never keep the probe's point, which
+            // leaves time unused and is not optimal.
+            (lo, s_lo, x_lo) = (0.0, s0, (self.vars.x.clone(), s0));
+            (hi, s_hi) = (probe, s);
+            x_hi = Some(at_probe);
+            have_hi_solution = true;
+        } else {
+            (lo, s_lo, x_lo) = (probe, s, (self.vars.x.clone(), s));
+        }
         let mut side = 0i8;
         while it.budget < MAX_BUDGET {
             let nu = if it.budget == 1 && self.nu > lo && self.nu < hi {

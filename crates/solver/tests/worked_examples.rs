@@ -187,3 +187,30 @@ fn certificate_finds_the_budget_multiplier_across_80_orders_of_magnitude() {
     assert!(k.stationarity < 1e-12, "{k:?}");
     assert!((k.budget_multiplier - 1.125).abs() < 1e-9, "{k:?}");
 }
+
+/// Found by the warm-start property (seed kept in `properties.proptest-regressions`): with a small
+/// ridge the total time is steep in the budget multiplier, and the probe the budget search starts
+/// with already fitted the budget while the multiplier-free optimum did not. The search returned
+/// the probe's point, 0.013 s under the budget and not optimal (KKT 4e-6), and called it optimal.
+/// It now searches between 0 and the probe and lands on Σx = T with a true certificate.
+#[test]
+fn budget_search_does_not_stop_at_its_probe() {
+    use traycast_solver::{DwellSolver, Rates, Spec, Status, kkt};
+    let a = [
+        0.4693161229017248,
+        0.9602046436371423,
+        0.09076371759790489,
+        0.023624327553285362,
+    ];
+    let rates = Rates::from_row_major(1, 4, &a).unwrap();
+    let mut spec = Spec::band(vec![53.88961636879949], vec![60.27330803750949], 4);
+    spec.weights = vec![7.242349403068463];
+    spec.budget = Some(80.26461095278191 * 0.9);
+    spec.ridge = 0.0020364847234940597;
+    let sol = DwellSolver::new(rates.clone()).solve(&spec).unwrap();
+    assert_eq!(sol.status, Status::BudgetBinding);
+    let total: f64 = sol.dwell.iter().sum();
+    assert!((total - spec.budget.unwrap()).abs() < 1e-9, "{total}");
+    let k = kkt::check(&rates, &spec, &sol.dwell);
+    assert!(k.stationarity < 1e-12 && k.budget_multiplier > 0.0, "{k:?}");
+}
