@@ -173,6 +173,12 @@ fn locate(args: &Args, e: InputError) -> CliError {
             config: Some(j),
             ..
         }
+        | InputError::Magnitude {
+            field: Field::Rates,
+            index: Some(i),
+            config: Some(j),
+            ..
+        }
         | InputError::NegativeRate {
             cell: i, config: j, ..
         } => CliError::at(&args.rates, i + 1, j + 1, &e),
@@ -184,28 +190,6 @@ fn locate(args: &Args, e: InputError) -> CliError {
                 .unwrap_or(&args.rates);
             CliError::at(file, cell + 1, 0, &e)
         }
-        InputError::Magnitude {
-            field: Field::Rates,
-            index: Some(i),
-            config: Some(j),
-            ..
-        } => CliError::at(&args.rates, i + 1, j + 1, &e),
-        InputError::Magnitude {
-            field,
-            index: Some(i),
-            ..
-        } => match vector_file(*field) {
-            Some(f) => CliError::at(f, i + 1, 0, &e),
-            None => CliError::input(&e),
-        },
-        InputError::Magnitude {
-            field: Field::Budget,
-            ..
-        } => CliError::input(format!("--budget: {e}")),
-        InputError::Magnitude {
-            field: Field::TimePenalty,
-            ..
-        } => CliError::input(format!("--time-penalty: {e}")),
         InputError::NonPositiveWeight { cell, .. } => match &args.weights {
             Some(w) => CliError::at(w, cell + 1, 0, &e),
             None => CliError::input(&e),
@@ -215,6 +199,11 @@ fn locate(args: &Args, e: InputError) -> CliError {
             index: Some(i),
             ..
         }
+        | InputError::Magnitude {
+            field,
+            index: Some(i),
+            ..
+        }
         | InputError::Negative {
             field,
             index: Some(i),
@@ -227,11 +216,19 @@ fn locate(args: &Args, e: InputError) -> CliError {
             field: Field::Budget,
             ..
         }
+        | InputError::Magnitude {
+            field: Field::Budget,
+            ..
+        }
         | InputError::Negative {
             field: Field::Budget,
             ..
         } => CliError::input(format!("--budget: {e}")),
         InputError::NotFinite {
+            field: Field::TimePenalty,
+            ..
+        }
+        | InputError::Magnitude {
             field: Field::TimePenalty,
             ..
         }

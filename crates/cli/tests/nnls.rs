@@ -2,13 +2,8 @@
 
 mod common;
 
-use std::path::PathBuf;
+use common::scratch;
 
-fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("traycast-nnls-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
-}
 
 fn run(args: &[&str]) -> (i32, String, String) {
     common::traycast(&[&["nnls"], args].concat())

@@ -2,12 +2,11 @@
 
 mod common;
 
-use common::traycast;
+use common::{scratch, traycast};
 
 #[test]
 fn demo_solve_link_open_round_trip() {
-    let dir = std::env::temp_dir().join(format!("traycast-plans-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("plans");
     let (code, list, _) = traycast(&["demo"]);
     assert_eq!(code, 0);
     assert_eq!(list.lines().count(), 3);
@@ -61,8 +60,7 @@ fn demo_solve_link_open_round_trip() {
 
 #[test]
 fn bad_plans_and_links_exit_2_with_one_line() {
-    let dir = std::env::temp_dir().join(format!("traycast-badplans-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("badplans");
     let bad = dir.join("bad.json");
     std::fs::write(
         &bad,
@@ -82,8 +80,7 @@ fn bad_plans_and_links_exit_2_with_one_line() {
 
 #[test]
 fn calibrate_writes_a_library_with_errors_and_a_quality_report() {
-    let dir = std::env::temp_dir().join(format!("traycast-calibrate-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("calibrate");
     let path = |name: &str| dir.join(name).to_str().unwrap().to_string();
     let (plan, runs, lib, probes) = (
         path("plan.json"),
@@ -169,8 +166,7 @@ fn calibrate_writes_a_library_with_errors_and_a_quality_report() {
 /// document; dwells are `dwell_s` and statuses are spelled as the solver spells them everywhere.
 #[test]
 fn every_result_command_speaks_json() {
-    let dir = std::env::temp_dir().join(format!("traycast-json-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("json");
     let path = |name: &str| dir.join(name).to_str().unwrap().to_string();
     let (plan, runs, lib, curves) = (
         path("plan.json"),
@@ -211,8 +207,7 @@ fn every_result_command_speaks_json() {
 /// `library export` writes the maps a plan is evaluated on, and they read back as a library.
 #[test]
 fn library_export_writes_the_plan_maps() {
-    let dir = std::env::temp_dir().join(format!("traycast-export-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("export");
     let plan = dir.join("plan.json").display().to_string();
     let maps = dir.join("maps.csv").display().to_string();
     assert_eq!(traycast(&["demo", "lunch-tray", "--out", &plan]).0, 0);
@@ -229,8 +224,7 @@ fn library_export_writes_the_plan_maps() {
 /// own, not the end of the batch (exit 2 after writing everything).
 #[test]
 fn batch_evaluates_every_plan_and_reports_failures_in_line() {
-    let dir = std::env::temp_dir().join(format!("traycast-batch-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("batch");
     let path = |name: &str| dir.join(name).display().to_string();
     let mut plans = Vec::new();
     for d in ["lunch-tray", "frozen-portion", "side-by-side"] {
