@@ -4,7 +4,6 @@ mod common;
 
 use common::scratch;
 
-
 fn run(args: &[&str]) -> (i32, String, String) {
     common::traycast(&[&["nnls"], args].concat())
 }
