@@ -238,7 +238,13 @@ pub(super) fn maps_hash(plan: &Plan) -> u64 {
         MapSource::Library { name, hash } => {
             h.word(2);
             h.bytes(name.as_bytes());
-            h.word(hash.map_or(0, |v| v ^ 1));
+            match hash {
+                None => h.word(0),
+                Some(v) => {
+                    h.word(1);
+                    h.word(*v);
+                }
+            }
         }
     }
     h.finish()
