@@ -30,5 +30,6 @@ const stats = await page.evaluate(() => {
   };
   return { quick: q('tc-quick'), input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), full_frame: q('tc-full-frame') };
 });
-console.log(JSON.stringify({ ...stats, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
+const isolated = await page.evaluate(() => window.crossOriginIsolated === true);
+console.log(JSON.stringify({ ...stats, isolated, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
 await browser.close();

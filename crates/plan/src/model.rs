@@ -1,7 +1,7 @@
 //! The plan a user edits: a tray of cells, the food items placed on it, zones with target bands,
 //! oven settings, and where the heating maps come from.
 
-use crate::error::{Place, PlanError};
+use crate::error::PlanError;
 use traycast_thermal::catalogue::{self, CatalogueFood};
 
 /// Largest tray side, in cells (keeps links and solves bounded).
@@ -127,20 +127,28 @@ pub struct Plan {
     pub maps: MapSource,
 }
 
-fn check(ok: bool, place: impl Into<Place>, msg: impl Into<String>) -> Result<(), PlanError> {
-    if ok {
-        Ok(())
-    } else {
-        Err(PlanError::new(place, msg))
-    }
+/// `Ok` when `ok`, else an error at `place`. A macro so the place and message are only formatted
+/// when the check fails: validation runs on every brush stroke.
+macro_rules! check {
+    ($ok:expr, $place:expr, $msg:expr $(,)?) => {
+        if $ok {
+            Ok(())
+        } else {
+            Err(PlanError::new($place, $msg))
+        }
+    };
 }
 
-fn finite_in(v: f64, lo: f64, hi: f64, place: String, what: &str) -> Result<(), PlanError> {
-    check(
-        v.is_finite() && v >= lo && v <= hi,
-        place,
-        format!("{what} is {v}; it must be between {lo} and {hi}"),
-    )
+/// `Ok` when `v` is finite and within `lo..=hi`, else an error at `place` naming `what`.
+macro_rules! finite_in {
+    ($v:expr, $lo:expr, $hi:expr, $place:expr, $what:expr $(,)?) => {{
+        let (v, lo, hi): (f64, f64, f64) = ($v, $lo, $hi);
+        check!(
+            v.is_finite() && v >= lo && v <= hi,
+            $place,
+            format!("{} is {v}; it must be between {lo} and {hi}", $what)
+        )
+    }};
 }
 
 impl Plan {
@@ -173,69 +181,63 @@ impl Plan {
     /// Checks everything a solve relies on; the error names the field and what to change.
     pub fn validate(&self) -> Result<(), PlanError> {
         let t = &self.tray;
-        check(
+        check!(
             (1..=MAX_SIDE).contains(&t.width),
             "tray.width",
             format!("tray width {} must be 1 to {MAX_SIDE} cells", t.width),
         )?;
-        check(
+        check!(
             (1..=MAX_SIDE).contains(&t.height),
             "tray.height",
             format!("tray height {} must be 1 to {MAX_SIDE} cells", t.height),
         )?;
-        finite_in(
-            t.cell_mm,
-            1.0,
-            100.0,
-            "tray.cell_mm".into(),
-            "cell size (mm)",
-        )?;
-        check(
+        finite_in!(t.cell_mm, 1.0, 100.0, "tray.cell_mm", "cell size (mm)",)?;
+        check!(
             self.name.chars().count() <= 200,
             "name",
             "plan name is longer than 200 characters",
         )?;
         let n = t.cells();
-        check(
+        check!(
             self.food.len() == n,
             "food",
             format!("food grid has {} cells, the tray has {n}", self.food.len()),
         )?;
-        check(
+        check!(
             self.zone.len() == n,
             "zone",
             format!("zone grid has {} cells, the tray has {n}", self.zone.len()),
         )?;
-        check(
+        check!(
             self.items.len() <= MAX_ITEMS,
             "items",
             format!("at most {MAX_ITEMS} food items"),
         )?;
-        check(
+        check!(
             self.zones.len() <= MAX_ITEMS,
             "zones",
             format!("at most {MAX_ITEMS} zones"),
         )?;
         for (k, it) in self.items.iter().enumerate() {
             let p = |f: &str| format!("items[{k}].{f}");
-            check(
+            check!(
                 it.name.chars().count() <= 100,
                 p("name"),
                 "name is longer than 100 characters",
             )?;
-            check(
+            check!(
                 catalogue::find(&it.food).is_some(),
                 p("food"),
                 format!("'{}' is not a catalogue food", it.food),
             )?;
-            finite_in(
+            finite_in!(
                 it.thickness_mm,
                 1.0,
                 200.0,
                 p("thickness_mm"),
                 "thickness (mm)",
             )?;
-            finite_in(
+            finite_in!(
                 it.start_c,
                 -40.0,
                 95.0,
@@ -245,22 +247,22 @@ impl Plan {
         }
         for (k, z) in self.zones.iter().enumerate() {
             let p = |f: &str| format!("zones[{k}].{f}");
-            check(
+            check!(
                 z.name.chars().count() <= 100,
                 p("name"),
                 "name is longer than 100 characters",
             )?;
-            finite_in(z.min_c, -40.0, 100.0, p("min_c"), "band minimum (°C)")?;
-            finite_in(z.max_c, -40.0, 100.0, p("max_c"), "band maximum (°C)")?;
-            check(
+            finite_in!(z.min_c, -40.0, 100.0, p("min_c"), "band minimum (°C)")?;
+            finite_in!(z.max_c, -40.0, 100.0, p("max_c"), "band maximum (°C)")?;
+            check!(
                 z.min_c <= z.max_c,
                 p("max_c"),
                 format!("band maximum {} is below its minimum {}", z.max_c, z.min_c),
             )?;
-            finite_in(z.weight, 1e-3, 1e3, p("weight"), "weight")?;
+            finite_in!(z.weight, 1e-3, 1e3, p("weight"), "weight")?;
             if let Some(c) = z.cap_c {
-                finite_in(c, -40.0, 100.0, p("cap_c"), "hard cap (°C)")?;
-                check(
+                finite_in!(c, -40.0, 100.0, p("cap_c"), "hard cap (°C)")?;
+                check!(
                     c >= z.min_c,
                     p("cap_c"),
                     format!("hard cap {c} °C is below the band minimum {} °C", z.min_c),
@@ -290,53 +292,47 @@ impl Plan {
             }
         }
         let o = &self.oven;
-        finite_in(
-            o.power_w,
-            50.0,
-            20_000.0,
-            "oven.power_w".into(),
-            "rated power (W)",
-        )?;
-        check(
+        finite_in!(o.power_w, 50.0, 20_000.0, "oven.power_w", "rated power (W)",)?;
+        check!(
             (1..=MAX_CONFIGS).contains(&o.configs),
             "oven.configs",
             format!("configurations must be 1 to {MAX_CONFIGS}"),
         )?;
         if let Some(b) = o.budget_s {
-            finite_in(b, 0.0, 7200.0, "oven.budget_s".into(), "time budget (s)")?;
+            finite_in!(b, 0.0, 7200.0, "oven.budget_s", "time budget (s)")?;
         }
         if let Some(l) = o.limit_s {
-            finite_in(
+            finite_in!(
                 l,
                 0.0,
                 7200.0,
-                "oven.limit_s".into(),
+                "oven.limit_s",
                 "per-configuration limit (s)",
             )?;
         }
-        finite_in(
+        finite_in!(
             o.quantum_s,
             0.0,
             60.0,
-            "oven.quantum_s".into(),
+            "oven.quantum_s",
             "dwell quantum (s)",
         )?;
-        finite_in(
+        finite_in!(
             o.time_penalty,
             0.0,
             1e3,
-            "oven.time_penalty".into(),
+            "oven.time_penalty",
             "time penalty",
         )?;
-        finite_in(
+        finite_in!(
             o.standing_s,
             0.0,
             3600.0,
-            "oven.standing_s".into(),
+            "oven.standing_s",
             "standing time (s)",
         )?;
         if let Sequencing::Rounds(r) = o.sequencing {
-            check(
+            check!(
                 (1..=100).contains(&r),
                 "oven.sequencing",
                 "rounds must be 1 to 100",

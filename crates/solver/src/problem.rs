@@ -90,15 +90,30 @@ impl Rates {
         let m = self.cells();
         let data = self.matrix.as_slice();
         let mut z = vec![0.0; m];
-        for (j, &xj) in x.iter().enumerate() {
-            if xj == 0.0 {
-                continue;
-            }
-            for (zi, a) in z.iter_mut().zip(&data[j * m..(j + 1) * m]) {
-                *zi += a * xj;
+        let support: Vec<(usize, f64)> = x
+            .iter()
+            .copied()
+            .enumerate()
+            .filter(|&(_, xj)| xj != 0.0)
+            .collect();
+        // Row blocks small enough that a block of z stays in the first-level cache while every
+        // used column passes over it.
+        const BLOCK: usize = 256;
+        for start in (0..m).step_by(BLOCK) {
+            let end = (start + BLOCK).min(m);
+            let zb = &mut z[start..end];
+            for &(j, xj) in &support {
+                axpy(zb, xj, &data[j * m + start..j * m + end]);
             }
         }
         z
+    }
+}
+
+/// z += s·a, the inner loop of every A·x.
+fn axpy(z: &mut [f64], s: f64, a: &[f64]) {
+    for (zi, ai) in z.iter_mut().zip(a) {
+        *zi += ai * s;
     }
 }
 
@@ -118,7 +133,8 @@ pub const MAX_CELLS: usize = 16_384;
 /// caller's business).
 fn in_magnitude(v: f64) -> bool {
     let a = v.abs();
-    a == 0.0 || a.is_infinite() || (MAGNITUDE_RANGE.0..=MAGNITUDE_RANGE.1).contains(&a)
+    // Non-short-circuit `|`/`&`: no branches in the validation sweep.
+    (a == 0.0) | (a == f64::INFINITY) | ((a >= MAGNITUDE_RANGE.0) & (a <= MAGNITUDE_RANGE.1))
 }
 
 fn out_of_range(
@@ -209,6 +225,26 @@ impl Spec {
 
     /// Checks the specification against the rate matrix's shape.
     pub fn validate(&self, cells: usize, configs: usize) -> Result<(), InputError> {
+        self.validate_dims(cells, configs)?;
+        self.validate_cells(0..cells)?;
+        self.validate_rest()
+    }
+
+    /// [`Spec::validate`] for a specification that differs from one already validated (same sizes)
+    /// only in `changed` cells, and in the per-configuration and scalar settings: the warm
+    /// path, where a brush stroke changes a cell or two of thousands.
+    pub(crate) fn validate_changed(
+        &self,
+        cells: usize,
+        configs: usize,
+        changed: impl Iterator<Item = usize>,
+    ) -> Result<(), InputError> {
+        self.validate_dims(cells, configs)?;
+        self.validate_cells(changed)?;
+        self.validate_rest()
+    }
+
+    fn validate_dims(&self, cells: usize, configs: usize) -> Result<(), InputError> {
         let dims = [
             (Field::Lower, self.lo.len(), cells),
             (Field::Upper, self.hi.len(), cells),
@@ -224,7 +260,11 @@ impl Spec {
                 });
             }
         }
-        for i in 0..cells {
+        Ok(())
+    }
+
+    fn validate_cells(&self, which: impl Iterator<Item = usize>) -> Result<(), InputError> {
+        for i in which {
             let (lo, hi, w) = (self.lo[i], self.hi[i], self.weights[i]);
             if lo.is_nan() || lo == f64::INFINITY {
                 return Err(not_finite(Field::Lower, Some(i), lo));
@@ -247,6 +287,10 @@ impl Spec {
                 }
             }
         }
+        Ok(())
+    }
+
+    fn validate_rest(&self) -> Result<(), InputError> {
         for (j, &u) in self.upper.iter().enumerate() {
             if u.is_nan() {
                 return Err(not_finite(Field::Limits, Some(j), u));

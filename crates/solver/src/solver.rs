@@ -32,14 +32,13 @@ enum Class {
 }
 
 fn classify(z: f64, lo: f64, hi: f64) -> Class {
-    if lo == hi {
-        Class::Point
-    } else if z < lo {
-        Class::Below
-    } else if z > hi {
-        Class::Above
-    } else {
-        Class::Inside
+    // Branch-free: every cell is classified on every Newton pass, and the classes mix unpredictably.
+    let code = u8::from(z < lo) | (u8::from(z > hi) << 1) | (u8::from(lo == hi) << 2);
+    match code {
+        0 => Class::Inside,
+        1 => Class::Below,
+        2 => Class::Above,
+        _ => Class::Point,
     }
 }
 
@@ -100,6 +99,28 @@ pub struct DwellSolver {
     nu: f64,
     updates_since_rebuild: usize,
     row: Vec<f64>,
+}
+
+/// Candidates for cells whose band or weight differs between `old` and `new` (same lengths): the
+/// cells of every block of 64 whose bits differ anywhere. A brush stroke changes a cell or two, so
+/// a bitwise sweep (which vectorises) finds them without comparing every cell one by one.
+fn changed_cells<'a>(old: &'a Spec, new: &'a Spec) -> impl Iterator<Item = usize> + 'a {
+    const BLOCK: usize = 64;
+    let m = new.lo.len();
+    let differs = |a: &[f64], b: &[f64]| {
+        a.iter()
+            .zip(b)
+            .fold(0u64, |acc, (x, y)| acc | (x.to_bits() ^ y.to_bits()))
+            != 0
+    };
+    (0..m.div_ceil(BLOCK))
+        .filter(move |&k| {
+            let r = k * BLOCK..((k + 1) * BLOCK).min(m);
+            differs(&old.lo[r.clone()], &new.lo[r.clone()])
+                || differs(&old.hi[r.clone()], &new.hi[r.clone()])
+                || differs(&old.weights[r.clone()], &new.weights[r])
+        })
+        .flat_map(move |k| k * BLOCK..((k + 1) * BLOCK).min(m))
 }
 
 impl DwellSolver {
@@ -217,7 +238,7 @@ impl DwellSolver {
     /// Validates `spec` and brings the cache (Gram matrix of the cells outside their bands) in line
     /// with it without solving: the first call builds it, later calls apply low-rank corrections.
     pub fn prepare(&mut self, spec: &Spec) -> Result<(), InputError> {
-        spec.validate(self.rates.cells(), self.rates.configs())?;
+        self.validate(spec)?;
         self.sync_spec(spec);
         Ok(())
     }
@@ -228,16 +249,15 @@ impl DwellSolver {
     }
 
     /// The same answer as [`DwellSolver::solve`] without the per-cell predictions: `achieved` and
-    /// `band_distance` come back empty. With point targets this skips the one A·x product a solve
-    /// otherwise ends with (the objective then comes from the Gram matrix), which is what an
-    /// interactive caller wants before it redraws.
+    /// `band_distance` come back empty, and the objective comes from the Gram matrix rather than a
+    /// sum over cells (equal up to rounding). With point targets this skips the one A·x product a
+    /// solve otherwise ends with, which is what an interactive caller wants before it redraws.
     pub fn solve_dwell(&mut self, spec: &Spec) -> Result<Solution, InputError> {
         self.solve_inner(spec, false)
     }
 
     fn solve_inner(&mut self, spec: &Spec, predictions: bool) -> Result<Solution, InputError> {
-        let (m, n) = (self.rates.cells(), self.rates.configs());
-        spec.validate(m, n)?;
+        self.validate(spec)?;
         self.sync_spec(spec);
         let budget = spec.budget_or_inf();
         let upper: Vec<f64> = spec.upper.iter().map(|&u| u.min(budget)).collect();
@@ -267,6 +287,17 @@ impl DwellSolver {
         Ok(sol)
     }
 
+    /// Validates `spec`; against the last one (already valid) only the cells that changed.
+    fn validate(&self, spec: &Spec) -> Result<(), InputError> {
+        let (m, n) = (self.rates.cells(), self.rates.configs());
+        match &self.spec {
+            Some(old) if spec.lo.len() == m && spec.hi.len() == m && spec.weights.len() == m => {
+                spec.validate_changed(m, n, changed_cells(old, spec))
+            }
+            _ => spec.validate(m, n),
+        }
+    }
+
     /// Brings the cached classification, Gram matrix and b in line with `spec` by diffing against the last one.
     fn sync_spec(&mut self, spec: &Spec) {
         let Some(old) = self.spec.take() else {
@@ -277,7 +308,7 @@ impl DwellSolver {
         };
         let n = self.rates.configs();
         let mut changes = Vec::new();
-        for i in 0..self.rates.cells() {
+        for i in changed_cells(&old, spec) {
             let same = old.lo[i] == spec.lo[i]
                 && old.hi[i] == spec.hi[i]
                 && old.weights[i] == spec.weights[i];
@@ -507,8 +538,8 @@ impl DwellSolver {
                 tol: &tol,
             };
             let support: Vec<usize> = (0..n).filter(|&i| self.vars.x[i] != 0.0).collect();
-            let optimal = (0..n)
-                .all(|j| quad.violation_on(&self.vars.x, &support, self.vars.state[j], j) <= 1.0);
+            let grad = quad.gradient_on(&self.vars.x, &support);
+            let optimal = (0..n).all(|j| quad.violation(grad[j], self.vars.state[j], j) <= 1.0);
             if optimal {
                 return true;
             }
@@ -571,27 +602,39 @@ impl DwellSolver {
         let mut alpha: f64 = d.iter().map(|v| lin * v).sum::<f64>()
             + spec.ridge * x.iter().zip(d).map(|(a, b)| a * b).sum::<f64>();
         let mut beta: f64 = spec.ridge * d.iter().map(|v| v * v).sum::<f64>();
+        let m = self.rates.cells();
+        let (z, lo, hi, w) = (
+            &self.z[..m],
+            &spec.lo[..m],
+            &spec.hi[..m],
+            &spec.weights[..m],
+        );
+        let delta = &delta[..m];
+        // Slope terms of the cells outside their bands at t = 0, in four independent lanes so the
+        // sum does not wait on itself (this loop runs over every cell on every Newton pass).
+        let (mut a4, mut b4) = ([0.0f64; 4], [0.0f64; 4]);
+        for i in 0..m {
+            let (ga, gb) = slope_terms(z[i], delta[i], lo[i], hi[i], w[i]);
+            a4[i % 4] += ga;
+            b4[i % 4] += gb;
+        }
+        alpha += (a4[0] + a4[1]) + (a4[2] + a4[3]);
+        beta += (b4[0] + b4[1]) + (b4[2] + b4[3]);
+        // Breakpoints: band edges crossed strictly inside (0, 1), i.e. edge − z strictly between
+        // 0 and dz. Few cells cross, so the test is cheap and the division rare.
         let mut events: Vec<(f64, usize, bool)> = Vec::new();
-        for i in 0..self.rates.cells() {
-            let (z, dz) = (self.z[i], delta[i]);
-            let (lo, hi, w) = (spec.lo[i], spec.hi[i], spec.weights[i]);
-            let class = if lo == hi {
-                Class::Point
-            } else {
-                band_class_at(z, lo, hi, dz)
-            };
-            if let Some(t) = class_target(class, lo, hi) {
-                alpha += w * (z - t) * dz;
-                beta += w * dz * dz;
+        let crosses = |gap: f64, dz: f64| ((gap > 0.0) & (gap < dz)) | ((gap < 0.0) & (gap > dz));
+        for i in 0..m {
+            let (zi, dz) = (z[i], delta[i]);
+            let (gap_lo, gap_hi) = (lo[i] - zi, hi[i] - zi);
+            let (at_lo, at_hi) = (crosses(gap_lo, dz), crosses(gap_hi, dz));
+            if !((at_lo | at_hi) & (lo[i] != hi[i])) {
+                continue;
             }
-            if class != Class::Point && dz != 0.0 {
-                for (edge, is_lo) in [(lo, true), (hi, false)] {
-                    if edge.is_finite() {
-                        let te = (edge - z) / dz;
-                        if te > 0.0 && te < 1.0 {
-                            events.push((te, i, is_lo));
-                        }
-                    }
+            for (gap, is_lo, hit) in [(gap_lo, true, at_lo), (gap_hi, false, at_hi)] {
+                let te = gap / dz;
+                if hit && te > 0.0 && te < 1.0 {
+                    events.push((te, i, is_lo));
                 }
             }
         }
@@ -770,8 +813,10 @@ impl DwellSolver {
             .budget
             .unwrap_or(0.0)
             .max(x.iter().fold(0.0, |m: f64, v| m.max(*v)));
-        let objective = if self.z_stale {
-            // xᵀGx − 2bᵀx + Σwt² + μΣx + λ‖x‖², all from cached quantities.
+        let objective = if self.z_stale || !predictions {
+            // xᵀGx − 2bᵀx + Σwt² + μΣx + λ‖x‖², all from cached quantities (the classes are those
+            // of the final x, so this is the objective up to rounding; the per-cell sum is kept
+            // for callers that asked for the predictions anyway).
             let quad: f64 = x.iter().zip(gx.iter()).map(|(a, b)| a * b).sum();
             let lin: f64 = x.iter().zip(&self.b).map(|(a, b)| a * b).sum();
             let total: f64 = x.iter().sum();
@@ -846,6 +891,21 @@ fn class_target(class: Class, lo: f64, hi: f64) -> Option<f64> {
     }
 }
 
+/// One cell's share of the line search's slope at t = 0, (w·(z − t)·dz, w·dz²), where t is the
+/// edge the cell is outside of (its class by [`band_class_at`]); zero for a cell inside its band.
+/// Branch-free: cells in and out of their bands mix unpredictably.
+fn slope_terms(z: f64, dz: f64, lo: f64, hi: f64, w: f64) -> (f64, f64) {
+    let point = lo == hi;
+    let below = (z < lo) | ((z == lo) & (dz < 0.0));
+    let above = !below & ((z > hi) | ((z == hi) & (dz > 0.0)));
+    let target = if above { hi } else { lo };
+    let on = below | above | point;
+    let gap = if on { z - target } else { 0.0 };
+    let weight = if on { w } else { 0.0 };
+    (weight * gap * dz, weight * dz * dz)
+}
+
+#[cfg(test)]
 /// Class of a band cell at value `z` moving in direction `dz` (ties resolved by the direction of motion).
 fn band_class_at(z: f64, lo: f64, hi: f64, dz: f64) -> Class {
     if z < lo || (z == lo && dz < 0.0) {
@@ -854,5 +914,50 @@ fn band_class_at(z: f64, lo: f64, hi: f64, dz: f64) -> Class {
         Class::Above
     } else {
         Class::Inside
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The branch-free forms agree with the plain definitions on every tie and infinite edge.
+    #[test]
+    fn branch_free_classes_match_their_definitions() {
+        let values = [f64::NEG_INFINITY, -2.0, -1.0, 0.0, 1.0, 2.0, f64::INFINITY];
+        let finite = [-2.0, -1.0, 0.0, 1.0, 2.0];
+        for &lo in &values[..6] {
+            for &hi in &values[1..] {
+                if lo > hi {
+                    continue;
+                }
+                for &z in &finite {
+                    let plain = if lo == hi {
+                        Class::Point
+                    } else if z < lo {
+                        Class::Below
+                    } else if z > hi {
+                        Class::Above
+                    } else {
+                        Class::Inside
+                    };
+                    assert_eq!(classify(z, lo, hi), plain, "z {z} in [{lo}, {hi}]");
+                    for &dz in &[-1.5, 0.0, 1.5] {
+                        let class = if lo == hi {
+                            Class::Point
+                        } else {
+                            band_class_at(z, lo, hi, dz)
+                        };
+                        let want = class_target(class, lo, hi)
+                            .map_or((0.0, 0.0), |t| (3.0 * (z - t) * dz, 3.0 * dz * dz));
+                        assert_eq!(
+                            slope_terms(z, dz, lo, hi, 3.0),
+                            want,
+                            "z {z} dz {dz} in [{lo}, {hi}]"
+                        );
+                    }
+                }
+            }
+        }
     }
 }

@@ -65,7 +65,7 @@ pub fn time_course(
 /// [`simulate::MODEL_LIMIT_C`] (dried food scorching). One line per item.
 pub(super) fn course_warnings(plan: &Plan, prep: &Prepared, course: &TimeCourse) -> Vec<String> {
     let mut out = Vec::new();
-    for (item, cells) in plan.items.iter().zip(&prep.item_cells) {
+    for (item, cells) in plan.items.iter().zip(prep.item_cells()) {
         let dry = cells.iter().filter(|&&i| course.boiled_dry[i]).count();
         if dry > 0 {
             out.push(format!(

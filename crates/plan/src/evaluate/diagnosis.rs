@@ -40,7 +40,7 @@ impl Evaluator {
         let maps = self.maps.as_ref().expect("set");
         let n = maps.cells;
         let profile = |z: usize| -> Vec<f64> {
-            let cells = &prep.zone_cells[z];
+            let cells = &prep.zone_cells()[z];
             (0..maps.configs)
                 .map(|c| {
                     cells.iter().map(|&i| maps.loaded[c * n + i]).sum::<f64>()
@@ -56,7 +56,7 @@ impl Evaluator {
             if na * nb > 0.0 { dot / (na * nb) } else { 0.0 }
         };
         let mid_rise = |z: usize| -> f64 {
-            let cells = &prep.zone_cells[z];
+            let cells = &prep.zone_cells()[z];
             let zone = &plan.zones[z];
             cells
                 .iter()
@@ -70,7 +70,7 @@ impl Evaluator {
             .is_some_and(|l| dwell.iter().any(|d| *d >= l - 1e-6));
         (0..plan.zones.len())
             .map(|z| {
-                let cells = &prep.zone_cells[z];
+                let cells = &prep.zone_cells()[z];
                 let share = |e: &[f64]| if cells.is_empty() { f64::NAN } else { cells.iter().filter(|&&i| e[i] == 0.0).count() as f64 / cells.len() as f64 };
                 let rms_l = rms(cells.iter().map(|&i| lin[i]));
                 let diagnosis = (rms_l > 1.0).then(|| {

@@ -221,7 +221,7 @@ pub(super) fn maps_hash(plan: &Plan) -> u64 {
     h.word(t.width as u64);
     h.word(t.height as u64);
     h.word(t.cell_mm.to_bits());
-    h.bytes(&plan.food);
+    h.bytes_wide(&plan.food);
     h.word(plan.items.len() as u64);
     for it in &plan.items {
         h.bytes(it.food.as_bytes());

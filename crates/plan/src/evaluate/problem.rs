@@ -79,7 +79,7 @@ impl Evaluator {
     ) -> Result<traycast_solver::Solution, PlanError> {
         let maps = self.maps.as_ref().expect("maps computed first");
         let n = maps.cells;
-        let (band, start, rows) = (&prep.band, &prep.start, &prep.rows);
+        let rows = &prep.rows;
         let build = |g: Option<&[f64]>| -> Result<DwellSolver, PlanError> {
             let data: Vec<f64> = rows
                 .iter()
@@ -105,18 +105,10 @@ impl Evaluator {
                 &mut self.solver.as_mut().expect("set").1
             }
         };
-        let (lo, hi): (Vec<f64>, Vec<f64>) = rows
-            .iter()
-            .map(|&i| {
-                let (a, b) = band[i].expect("targeted");
-                (a - start[i], b - start[i])
-            })
-            .unzip();
-        let mut spec = Spec::band(lo, hi, maps.configs);
-        spec.weights = rows
-            .iter()
-            .map(|&i| plan.zones[plan.zone_at(i).expect("targeted")].weight)
-            .collect();
+        let targets = &prep.problem;
+        let mut spec = Spec::band(targets.lo.clone(), targets.hi.clone(), maps.configs);
+        spec.weights.clone_from(&targets.weight);
+        let caps = &targets.cap;
         spec.upper = vec![plan.oven.limit_s.unwrap_or(f64::INFINITY); maps.configs];
         spec.budget = plan.oven.budget_s;
         spec.time_penalty = plan.oven.time_penalty;
@@ -124,14 +116,6 @@ impl Evaluator {
         // Hard caps: raise the weight of cells above their cap until the linear prediction respects
         // it (to 0.05 K) or the weights reach 10⁶× (then the excess is reported). Only then are the
         // per-cell predictions needed; without caps the dwell-only path skips A·x.
-        let caps: Vec<Option<f64>> = rows
-            .iter()
-            .map(|&i| {
-                plan.zones[plan.zone_at(i).expect("targeted")]
-                    .cap_c
-                    .map(|c| c - start[i])
-            })
-            .collect();
         if caps.iter().all(Option::is_none) {
             return Ok(solver.solve_dwell(&spec)?);
         }

@@ -64,7 +64,7 @@ pub(super) fn item_summaries(
     let last = course.times.len() - 1;
     (0..plan.items.len())
         .map(|k| {
-            let cells_k = &prep.item_cells[k];
+            let cells_k = &prep.item_cells()[k];
             let temps: Vec<f64> = cells_k.iter().map(|&i| course.after_standing[i]).collect();
             let zoned: Vec<f64> = cells_k
                 .iter()
