@@ -87,26 +87,40 @@ impl Rates {
     /// the configurations with no dwell: schedules use few of them, so this is several times less
     /// work than the dense product.
     pub fn apply(&self, x: &[f64]) -> Vec<f64> {
+        let mut z = vec![0.0; self.cells()];
+        self.apply_into(&mut [(x, &mut z)]);
+        z
+    }
+
+    /// (A·x, A·y) in one pass over the matrix: the memory traffic of one product.
+    pub(crate) fn apply_pair(&self, x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>) {
         let m = self.cells();
+        let (mut ax, mut ay) = (vec![0.0; m], vec![0.0; m]);
+        self.apply_into(&mut [(x, &mut ax), (y, &mut ay)]);
+        (ax, ay)
+    }
+
+    /// out += A·v for each (v, out), column by column over the configurations some v uses.
+    fn apply_into(&self, products: &mut [(&[f64], &mut Vec<f64>)]) {
+        let (m, n) = (self.cells(), self.configs());
         let data = self.matrix.as_slice();
-        let mut z = vec![0.0; m];
-        let support: Vec<(usize, f64)> = x
-            .iter()
-            .copied()
-            .enumerate()
-            .filter(|&(_, xj)| xj != 0.0)
+        let used: Vec<usize> = (0..n)
+            .filter(|&j| products.iter().any(|(v, _)| v[j] != 0.0))
             .collect();
-        // Row blocks small enough that a block of z stays in the first-level cache while every
-        // used column passes over it.
+        // Row blocks small enough that the blocks of the outputs stay in the first-level cache
+        // while every used column passes over them.
         const BLOCK: usize = 256;
         for start in (0..m).step_by(BLOCK) {
             let end = (start + BLOCK).min(m);
-            let zb = &mut z[start..end];
-            for &(j, xj) in &support {
-                axpy(zb, xj, &data[j * m + start..j * m + end]);
+            for &j in &used {
+                let col = &data[j * m + start..j * m + end];
+                for (v, out) in products.iter_mut() {
+                    if v[j] != 0.0 {
+                        axpy(&mut out[start..end], v[j], col);
+                    }
+                }
             }
         }
-        z
     }
 }
 
