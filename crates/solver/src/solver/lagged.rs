@@ -76,7 +76,9 @@ impl DwellSolver {
             let distance = (z - lo).abs().min((z - hi).abs());
             // The bound, widened for the rounding of the distance and of the bound itself.
             let bound = (self.row_max[i] * reach + 4.0 * f64::EPSILON * z.abs()) * (1.0 + 1e-9);
-            if !(distance > bound) {
+            // Not provably far (a NaN distance counts as near).
+            let far = distance > bound;
+            if !far {
                 near.push(i);
                 if near.len() > limit {
                     return None;
