@@ -45,7 +45,7 @@ fn bench(c: &mut Criterion) {
                 .rows
                 .iter()
                 .map(|&i| {
-                    let (a, b) = prep.band[i].unwrap();
+                    let (a, b) = prep.band(i).unwrap();
                     (a - prep.start[i], b - prep.start[i])
                 })
                 .unzip();

@@ -15,7 +15,7 @@ pub fn baseline(plan: &Plan, maps: &PlanMaps) -> Baseline {
 /// [`baseline`] from the plan's prepared facts.
 pub(super) fn of(plan: &Plan, prep: &Prepared, maps: &PlanMaps) -> Baseline {
     let n = maps.cells;
-    let (band, start, targeted) = (&prep.band, &prep.start, &prep.rows);
+    let (start, targeted) = (&prep.start, &prep.rows);
     // Mean rate over the configurations, for the targeted cells only, map by map.
     let mut avg = vec![0.0; targeted.len()];
     for c in 0..maps.configs {
@@ -29,7 +29,7 @@ pub(super) fn of(plan: &Plan, prep: &Prepared, maps: &PlanMaps) -> Baseline {
         .iter()
         .zip(&avg)
         .map(|(&i, &rate)| {
-            let rise = band[i].expect("targeted").0 - start[i];
+            let rise = prep.band(i).expect("targeted").0 - start[i];
             if rise <= 0.0 {
                 0.0
             } else if rate > 0.0 {
@@ -45,7 +45,7 @@ pub(super) fn of(plan: &Plan, prep: &Prepared, maps: &PlanMaps) -> Baseline {
         .iter()
         .zip(&avg)
         .map(|(&i, &rate)| {
-            let (a, b) = band[i].expect("targeted");
+            let (a, b) = prep.band(i).expect("targeted");
             band_distance(start[i] + rate * seconds, a, b)
         })
         .collect();

@@ -8,8 +8,8 @@ use std::sync::OnceLock;
 /// A plan's per-cell facts for one revision.
 #[derive(Clone, Debug)]
 pub struct Prepared {
-    /// Target band per cell, °C (min, effective max with the cap), for zoned cells.
-    pub band: Vec<Option<(f64, f64)>>,
+    /// Target band per zone code (0, no zone, has none), °C (min, effective max with the cap).
+    zone_band: Vec<Option<(f64, f64)>>,
     /// Start temperature per cell, °C (NaN for empty cells).
     pub start: Vec<f64>,
     /// The zoned cells, ascending: the rows of the dwell problem.
@@ -57,7 +57,6 @@ impl Prepared {
             band_of[k + 1] = Some((z.min_c, z.cap_c.map_or(z.max_c, |c| c.min(z.max_c))));
         }
         let start: Vec<f64> = food.iter().map(|&f| start_of[f as usize]).collect();
-        let band: Vec<Option<(f64, f64)>> = zone.iter().map(|&z| band_of[z as usize]).collect();
         let rows: Vec<usize> = (0..n).filter(|&i| zone[i] > 0).collect();
         // A valid plan paints targets on food only, so every row has a start temperature.
         let row_zone = |i: usize| &plan.zones[zone[i] as usize - 1];
@@ -76,7 +75,7 @@ impl Prepared {
             },
         };
         Prepared {
-            band,
+            zone_band: band_of[..=plan.zones.len()].to_vec(),
             start,
             rows,
             zone: zone.to_vec(),
@@ -86,6 +85,11 @@ impl Prepared {
             item_cells: OnceLock::new(),
             problem,
         }
+    }
+
+    /// Target band of cell `i`, °C (min, effective max with the cap), if it is zoned.
+    pub fn band(&self, i: usize) -> Option<(f64, f64)> {
+        self.zone_band[self.zone[i] as usize]
     }
 
     /// Each zone's cells, ascending: sorted out the first time a full evaluation asks (the
@@ -104,11 +108,11 @@ impl Prepared {
     /// Signed distance outside the band per cell, K, for `temps` (NaN for cells without a target,
     /// and wherever the temperature is not a number).
     pub fn band_errors(&self, temps: &[f64]) -> Vec<f64> {
-        self.band
+        self.zone
             .iter()
             .zip(temps)
-            .map(|(b, &t)| {
-                b.map_or(f64::NAN, |(lo, hi)| {
+            .map(|(&z, &t)| {
+                self.zone_band[z as usize].map_or(f64::NAN, |(lo, hi)| {
                     traycast_solver::band_distance(t, lo, hi)
                 })
             })

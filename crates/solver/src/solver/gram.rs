@@ -20,7 +20,8 @@ impl DwellSolver {
     }
 
     /// Brings the cached classification, Gram matrix and b in line with `spec` by diffing against the last one.
-    pub(super) fn sync_spec(&mut self, spec: &Spec) {
+    /// `changed` lists the cells that may differ from the last specification (all when `None`).
+    pub(super) fn sync_spec(&mut self, spec: &Spec, changed: Option<&[usize]>) {
         let Some(old) = self.spec.take() else {
             self.rebuild(spec);
             self.spec = Some(spec.clone());
@@ -29,7 +30,15 @@ impl DwellSolver {
         };
         let n = self.rates.configs();
         let mut changes = Vec::new();
-        for i in changed_cells(&old, spec) {
+        let all: Vec<usize>;
+        let changed = match changed {
+            Some(c) => c,
+            None => {
+                all = changed_cells(&old, spec).collect();
+                &all
+            }
+        };
+        for &i in changed {
             let same = old.lo[i] == spec.lo[i]
                 && old.hi[i] == spec.hi[i]
                 && old.weights[i] == spec.weights[i];

@@ -181,8 +181,7 @@ impl DwellSolver {
     /// Validates `spec` and brings the cache (Gram matrix of the cells outside their bands) in line
     /// with it without solving: the first call builds it, later calls apply low-rank corrections.
     pub fn prepare(&mut self, spec: &Spec) -> Result<(), InputError> {
-        self.validate(spec)?;
-        self.sync_spec(spec);
+        self.take_spec(spec)?;
         Ok(())
     }
 
@@ -200,8 +199,7 @@ impl DwellSolver {
     }
 
     fn solve_inner(&mut self, spec: &Spec, predictions: bool) -> Result<Solution, InputError> {
-        self.validate(spec)?;
-        self.sync_spec(spec);
+        self.take_spec(spec)?;
         let budget = spec.budget_or_inf();
         let upper: Vec<f64> = spec.upper.iter().map(|&u| u.min(budget)).collect();
         self.make_feasible(spec, &upper);
@@ -230,15 +228,23 @@ impl DwellSolver {
         Ok(sol)
     }
 
-    /// Validates `spec`; against the last one (already valid) only the cells that changed.
-    fn validate(&self, spec: &Spec) -> Result<(), InputError> {
+    /// Validates `spec` (against the last one, already valid, only the cells that changed) and
+    /// brings the cache in line with it.
+    fn take_spec(&mut self, spec: &Spec) -> Result<(), InputError> {
         let (m, n) = (self.rates.cells(), self.rates.configs());
-        match &self.spec {
+        let changed: Option<Vec<usize>> = match &self.spec {
             Some(old) if spec.lo.len() == m && spec.hi.len() == m && spec.weights.len() == m => {
-                spec.validate_changed(m, n, changed_cells(old, spec))
+                let changed: Vec<usize> = changed_cells(old, spec).collect();
+                spec.validate_changed(m, n, changed.iter().copied())?;
+                Some(changed)
             }
-            _ => spec.validate(m, n),
-        }
+            _ => {
+                spec.validate(m, n)?;
+                None
+            }
+        };
+        self.sync_spec(spec, changed.as_deref());
+        Ok(())
     }
 
     fn solution(
