@@ -16,6 +16,30 @@
 /// than the moist food, not the exact figure.
 pub const DRY_RESIDUE_LOSS: f64 = 0.2;
 
+/// Oven frequency, Hz (the 2.45 GHz ISM band every value here is quoted at).
+pub const FREQUENCY_HZ: f64 = 2.45e9;
+
+/// Speed of light in vacuum, m/s (exact, SI).
+const LIGHT_SPEED: f64 = 299_792_458.0;
+
+/// Power penetration depth D_p (m): the depth at which the power of a plane wave entering a thick
+/// layer of material with relative permittivity ε′ − jε″ has fallen to 1/e, at [`FREQUENCY_HZ`].
+///
+/// The exact expression from the attenuation constant (von Hippel 1954; Metaxas & Meredith 1983;
+/// shared/reference/physics.md §3.1): α = (2π/λ₀)·√((ε′/2)·(√(1 + (ε″/ε′)²) − 1)), D_p = 1/(2α).
+/// Infinite for a lossless material (ε″ = 0).
+pub fn penetration_depth(constant: f64, loss: f64) -> f64 {
+    let lambda0 = LIGHT_SPEED / FREQUENCY_HZ;
+    let tan = loss / constant;
+    let alpha = 2.0 * std::f64::consts::PI / lambda0
+        * (constant / 2.0 * ((1.0 + tan * tan).sqrt() - 1.0)).sqrt();
+    if alpha > 0.0 {
+        1.0 / (2.0 * alpha)
+    } else {
+        f64::INFINITY
+    }
+}
+
 /// How a food absorbs microwave power.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub enum LossClass {
@@ -82,6 +106,12 @@ impl LossClass {
                 constant_frozen: 2.5,
             },
         }
+    }
+
+    /// Power penetration depth of the thawed food, m ([`penetration_depth`] of the thawed ε′, ε″).
+    pub fn penetration_depth(self) -> f64 {
+        let f = self.factors();
+        penetration_depth(f.constant_thawed, f.thawed)
     }
 
     /// Absorption relative to the thawed state, for a fraction `unfrozen` (0…1) of the freezable

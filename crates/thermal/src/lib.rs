@@ -7,10 +7,12 @@
 //!   (Choi & Okos 1986 correlations, ASHRAE mixture rules), ice fraction below the freezing point;
 //! - [`material`]: enthalpy ↔ temperature with latent heat, continuous and monotonic through
 //!   freezing; conductivity and microwave absorption as functions of the state;
-//! - [`simulate`]: the time course on the tray grid — heating steps, conduction between cells and
-//!   foods, thawing, the boiling cap with moisture loss, surface loss, standing time;
+//! - [`simulate`]: the time course on the tray grid, each cell resolved through its thickness —
+//!   heating steps with Lambert's-law deposition, conduction in three directions, thawing, the
+//!   boiling cap with moisture loss, surface loss, standing time; the coldest point, mean and
+//!   surface of every cell;
 //! - [`schedule`]: dwell totals → ordered steps, in blocks or interleaved rounds;
-//! - [`safety`]: USDA FSIS and FDA Food Code temperatures as data, and the coldest-cell verdict;
+//! - [`safety`]: USDA FSIS and FDA Food Code temperatures as data, and the coldest-point verdict;
 //! - [`catalogue`]: typical foods with sourced compositions, absorption and safety classes.
 //!
 //! No I/O; builds for `wasm32-unknown-unknown` and natively.
@@ -27,7 +29,9 @@
 //! let load = Load { tray: Tray { width: 1, height: 1, cell_size: 0.02 }, items: &items, cells: &cells, start: &[5.0] };
 //! let maps = Maps { configs: 1, rates: &[0.5] };
 //! let course = simulate(&load, &maps, &Schedule::blocks(&[60.0]), &Settings::default()).unwrap();
-//! assert!(course.end_of_heating[0] > 30.0 && course.end_of_heating[0] < 36.0);
+//! // Standing evens it out, but the column's far side is still its coldest point.
+//! assert!(course.mean_after_standing[0] > 30.0 && course.mean_after_standing[0] < 36.0);
+//! assert!(course.after_standing[0] < course.mean_after_standing[0]);
 //! ```
 #![deny(missing_docs)]
 

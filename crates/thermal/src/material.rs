@@ -31,6 +31,11 @@ pub struct Material {
     /// Absorption of the dry residue left when all the water has boiled off, relative to the
     /// thawed food ([`LossClass::dry_ratio`]); 0 for pure water, which leaves nothing.
     pub dry_absorption: f64,
+    /// Power penetration depth of the thawed food at 2.45 GHz, m: how the column's power is
+    /// spread through the thickness ([`crate::dielectric::penetration_depth`]). Infinite (power
+    /// spread evenly) for [`Material::constant`] unless set with
+    /// [`Material::with_penetration_depth`].
+    pub penetration_depth: f64,
     /// Enthalpy at the boiling point (kJ/kg); +∞ for materials that do not boil.
     boil_h: f64,
 }
@@ -179,6 +184,7 @@ impl Material {
             water: comp.water,
             min_heat_capacity,
             dry_absorption: loss.dry_ratio(solids),
+            penetration_depth: loss.penetration_depth(),
             boil_h: f64::INFINITY,
         };
         m.boil_h = m.enthalpy(BOILING_POINT);
@@ -207,8 +213,23 @@ impl Material {
             water: 0.0,
             min_heat_capacity: cp,
             dry_absorption: 1.0,
+            penetration_depth: f64::INFINITY,
             boil_h: f64::INFINITY,
         })
+    }
+
+    /// The same material with power penetration depth `depth` (m, > 0; infinite spreads the power
+    /// evenly through the thickness).
+    pub fn with_penetration_depth(mut self, depth: f64) -> Result<Self, ThermalError> {
+        if depth.is_nan() || depth <= 0.0 {
+            return Err(ThermalError::OutOfRange {
+                what: "penetration depth (m)",
+                value: depth,
+                allowed: "greater than 0",
+            });
+        }
+        self.penetration_depth = depth;
+        Ok(self)
     }
 
     /// Specific enthalpy at `t` °C (kJ/kg, zero at −40 °C). At a sharp melting point, the liquid side.

@@ -13,8 +13,8 @@ use traycast_thermal::simulate::TimeCourse;
 /// Per-cell 95 % bounds after standing from the rates' standard errors.
 ///
 /// The linear rise Σ_c r_ic·x_c has the standard deviation √(Σ_c (σ_ic·x_c)²) when the rate errors
-/// are independent; its relative size is applied to the energy the cell absorbed over the whole
-/// course (its enthalpy gain plus the water it evaporated), and the bounds are read back through
+/// are independent; its relative size is applied to the energy the cell's coldest point absorbed
+/// over the whole course (its enthalpy gain plus the water that layer evaporated), and the bounds are read back through
 /// the food's enthalpy curve: a cell whose energy may fall short ends its lower bound on the thaw
 /// plateau rather than below it, and a boiling cell first loses the energy that only evaporated
 /// water. Conduction between cells (which averages errors out) is neglected, which widens the
@@ -28,7 +28,6 @@ pub fn cell_bounds(
     course: &TimeCourse,
 ) -> CellBounds {
     let n = maps.cells;
-    let cell_m = plan.tray.cell_mm / 1000.0;
     let mut lower = vec![f64::NAN; n];
     let mut upper = vec![f64::NAN; n];
     for i in 0..n {
@@ -41,8 +40,7 @@ pub fn cell_bounds(
         let rel = if rise > 0.0 { var.sqrt() / rise } else { 0.0 };
         let m = &mats[k];
         let after = course.after_standing[i];
-        let mass = m.density * cell_m * cell_m * plan.items[k].thickness_mm / 1000.0;
-        let evaporated = LATENT_VAPORISATION * course.moisture_loss[i] / mass;
+        let evaporated = LATENT_VAPORISATION * course.coldest_evaporated[i];
         let h = m.enthalpy(after);
         let absorbed = h - m.enthalpy(plan.items[k].start_c) + evaporated;
         let de = Z95 * rel * absorbed.abs();

@@ -70,9 +70,12 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
     let probes: Vec<usize> = (0..n)
         .filter(|&i| plan.food[i] > 0 && (i / w) % every == 0 && (i % w) % every == 0)
         .collect();
+    // The probes read each column's mean: calibration fits column-mean warming rates (a probe at
+    // one depth of a thick piece would read its own layer, which calibration does not yet model).
     let settings = Settings {
         standing: 0.0,
         record_every: recipe.step,
+        frames: traycast_thermal::simulate::View::Mean,
         ..Settings::default()
     };
     let mut rng = traycast_rng::SplitMix::new(recipe.seed);

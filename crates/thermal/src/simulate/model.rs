@@ -1,0 +1,390 @@
+//! The state of the tray during a simulation: one node per layer of every filled cell, and the
+//! explicit step that moves energy between them.
+
+use super::column::{layer_count, layer_span, overlap, power_shares};
+use super::{Edge, Load, Maps, Settings};
+use crate::composition::{BOILING_POINT, LATENT_VAPORISATION};
+use crate::material::Material;
+
+/// Two nodes exchanging heat through `area` (m²) across `len_a` of node a and `len_b` of node b
+/// (each contributes half its length over its conductivity), plus `contact` (m²K/W) between
+/// different food items.
+struct Pair {
+    a: usize,
+    b: usize,
+    area: f64,
+    len_a: f64,
+    len_b: f64,
+    contact: f64,
+}
+
+pub(super) struct Model<'a> {
+    pub load: &'a Load<'a>,
+    settings: Settings,
+    /// First node and number of layers of each cell (0 layers for empty cells).
+    pub first: Vec<usize>,
+    pub layers: Vec<usize>,
+    /// The filled cells.
+    pub filled: Vec<usize>,
+    /// Per node: its cell, its food item, thickness (m), share of the column's power.
+    pub cell: Vec<usize>,
+    item: Vec<usize>,
+    pub dz: Vec<f64>,
+    share: Vec<f64>,
+    /// Per node: starting mass, mass, energy (kJ), water left and evaporated (kg).
+    pub mass0: Vec<f64>,
+    pub mass: Vec<f64>,
+    pub energy: Vec<f64>,
+    water_left: Vec<f64>,
+    pub evaporated: Vec<f64>,
+    /// Nodes still taking part (not boiled dry).
+    live: Vec<usize>,
+    pub boiled_dry: Vec<bool>,
+    pub temp: Vec<f64>,
+    k: Vec<f64>,
+    absorb: Vec<f64>,
+    hint: Vec<usize>,
+    pairs: Vec<Pair>,
+    /// Per node: side area (m²) facing a held edge, and that edge's temperature.
+    edge_area: Vec<f64>,
+    edge_temp: Vec<f64>,
+    /// Per node: 1 for the top layer (which loses heat to the cavity air), else 0.
+    top: Vec<f64>,
+    flux: Vec<f64>,
+    cond: Vec<f64>,
+    gsum: Vec<f64>,
+    /// Per node 1/(2k), m·K/W.
+    half_inv_k: Vec<f64>,
+    /// Per node min(dH/dT), J/(kg·K).
+    capacity: Vec<f64>,
+    /// Column mass of each node's cell, kg: converts the map's column rate into watts.
+    column_mass: Vec<f64>,
+}
+
+impl<'a> Model<'a> {
+    pub fn new(load: &'a Load<'a>, settings: Settings) -> Self {
+        let tray = load.tray;
+        let n = tray.cells();
+        let dx = tray.cell_size;
+        let filled: Vec<usize> = (0..n).filter(|&i| load.cells[i].is_some()).collect();
+        let (mut first, mut layers) = (vec![0; n], vec![0; n]);
+        let mut m = Model {
+            load,
+            settings,
+            first: vec![],
+            layers: vec![],
+            filled: vec![],
+            cell: vec![],
+            item: vec![],
+            dz: vec![],
+            share: vec![],
+            mass0: vec![],
+            mass: vec![],
+            energy: vec![],
+            water_left: vec![],
+            evaporated: vec![],
+            live: vec![],
+            boiled_dry: vec![],
+            temp: vec![],
+            k: vec![],
+            absorb: vec![],
+            hint: vec![],
+            pairs: vec![],
+            edge_area: vec![],
+            edge_temp: vec![],
+            top: vec![],
+            flux: vec![],
+            cond: vec![],
+            gsum: vec![],
+            half_inv_k: vec![],
+            capacity: vec![],
+            column_mass: vec![],
+        };
+        for &i in &filled {
+            let c = load.cells[i].expect("filled");
+            let mat = &load.items[c.item];
+            let count = layer_count(c.thickness, settings.max_layer, mat.penetration_depth);
+            first[i] = m.cell.len();
+            layers[i] = count;
+            let dz = c.thickness / count as f64;
+            let shares = power_shares(
+                c.thickness,
+                count,
+                mat.penetration_depth,
+                settings.bottom_entry,
+            );
+            for (l, share) in shares.into_iter().enumerate() {
+                let mass = mat.density * dx * dx * dz;
+                m.cell.push(i);
+                m.item.push(c.item);
+                m.dz.push(dz);
+                m.share.push(share);
+                m.mass0.push(mass);
+                m.energy.push(mat.enthalpy(load.start[i]) * mass);
+                m.water_left.push(mat.water * mass);
+                m.top.push(if l == 0 { 1.0 } else { 0.0 });
+                m.capacity.push(mat.min_heat_capacity * 1000.0);
+                m.column_mass.push(mat.density * dx * dx * c.thickness);
+            }
+        }
+        let nodes = m.cell.len();
+        m.first = first;
+        m.layers = layers;
+        m.mass = m.mass0.clone();
+        m.evaporated = vec![0.0; nodes];
+        m.live = (0..nodes).collect();
+        m.boiled_dry = vec![false; nodes];
+        m.temp = vec![f64::NAN; nodes];
+        m.k = vec![0.0; nodes];
+        m.absorb = vec![0.0; nodes];
+        m.hint = vec![0; nodes];
+        m.edge_area = vec![0.0; nodes];
+        m.edge_temp = vec![0.0; nodes];
+        m.flux = vec![0.0; nodes];
+        m.gsum = vec![0.0; nodes];
+        m.half_inv_k = vec![f64::INFINITY; nodes];
+        m.filled = filled;
+        m.connect();
+        m.cond = vec![0.0; m.pairs.len()];
+        m.update_state();
+        m
+    }
+
+    /// Pairs between the layers of a column (through the horizontal area), between overlapping
+    /// layers of side-by-side cells (through the vertical overlap), and the held edges.
+    fn connect(&mut self) {
+        let load = self.load;
+        let tray = load.tray;
+        let dx = tray.cell_size;
+        let contact = 1.0 / self.settings.contact_conductance;
+        for r in 0..tray.height {
+            for c in 0..tray.width {
+                let i = r * tray.width + c;
+                let Some(fi) = load.cells[i] else { continue };
+                let (fa, la) = (self.first[i], self.layers[i]);
+                for l in 0..la.saturating_sub(1) {
+                    let (a, b) = (fa + l, fa + l + 1);
+                    self.pairs.push(Pair {
+                        a,
+                        b,
+                        area: dx * dx,
+                        len_a: self.dz[a],
+                        len_b: self.dz[b],
+                        contact: 0.0,
+                    });
+                }
+                let side = |j: usize, pairs: &mut Vec<Pair>| {
+                    let Some(fj) = load.cells[j] else { return };
+                    let (fb, lb) = (self.first[j], self.layers[j]);
+                    for p in 0..la {
+                        let span_a = layer_span(fi.thickness, la, p);
+                        for q in 0..lb {
+                            let shared = overlap(span_a, layer_span(fj.thickness, lb, q));
+                            if shared > 0.0 {
+                                pairs.push(Pair {
+                                    a: fa + p,
+                                    b: fb + q,
+                                    area: dx * shared,
+                                    len_a: dx,
+                                    len_b: dx,
+                                    contact: if fi.item == fj.item { 0.0 } else { contact },
+                                });
+                            }
+                        }
+                    }
+                };
+                let mut pairs = std::mem::take(&mut self.pairs);
+                if c + 1 < tray.width {
+                    side(i + 1, &mut pairs);
+                }
+                if r + 1 < tray.height {
+                    side(i + tray.width, &mut pairs);
+                }
+                self.pairs = pairs;
+                let edges = self.settings.edges;
+                let borders = [
+                    (c == 0, edges.x),
+                    (c + 1 == tray.width, edges.x),
+                    (r == 0, edges.y),
+                    (r + 1 == tray.height, edges.y),
+                ];
+                for (on, edge) in borders {
+                    if let (true, Edge::Fixed(t)) = (on, edge) {
+                        // One temperature per node: a corner touching two held edges takes the last.
+                        for node in fa..fa + la {
+                            self.edge_area[node] += dx * self.dz[node];
+                            self.edge_temp[node] = t;
+                        }
+                    }
+                }
+            }
+        }
+    }
+
+    fn material(&self, node: usize) -> &'a Material {
+        &self.load.items[self.item[node]]
+    }
+
+    fn update_state(&mut self) {
+        for idx in 0..self.live.len() {
+            let i = self.live[idx];
+            self.set_state(i);
+        }
+    }
+
+    /// Temperature, conductivity and absorption of node `i` from its energy, mass and moisture.
+    fn set_state(&mut self, i: usize) {
+        let mat = self.material(i);
+        let (t, k, a) = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
+        let water0 = mat.water * self.mass0[i];
+        let moisture = if water0 > 0.0 {
+            self.water_left[i] / water0
+        } else {
+            1.0
+        };
+        self.temp[i] = t;
+        self.k[i] = k;
+        self.absorb[i] = a * mat.moisture_factor(moisture);
+    }
+
+    /// Takes node `i` out of the physics once nothing is left of it: it holds at the boiling point,
+    /// absorbs nothing and exchanges no heat.
+    fn dry_out(&mut self, i: usize) {
+        self.boiled_dry[i] = true;
+        self.temp[i] = BOILING_POINT;
+        self.k[i] = 0.0;
+        self.half_inv_k[i] = f64::INFINITY;
+        self.absorb[i] = 0.0;
+        self.live.retain(|&j| j != i);
+    }
+
+    /// Conductance of every pair with the current conductivities, and each node's sum of them.
+    fn conductances(&mut self) {
+        let dx = self.load.tray.cell_size;
+        let top = self.settings.surface_h * dx * dx;
+        for &i in &self.live {
+            self.gsum[i] = top * self.top[i] + self.k[i] * self.edge_area[i] / dx;
+            // 1/(2k) once per node, not once per pair side; infinite for a boiled-dry node
+            // (k = 0), which cuts its pairs off.
+            self.half_inv_k[i] = 0.5 / self.k[i];
+        }
+        for (p, g) in self.pairs.iter().zip(self.cond.iter_mut()) {
+            let r = p.len_a * self.half_inv_k[p.a] + p.len_b * self.half_inv_k[p.b] + p.contact;
+            *g = p.area / r;
+            self.gsum[p.a] += *g;
+            self.gsum[p.b] += *g;
+        }
+    }
+
+    /// Largest stable step, min over nodes of C/ΣG, with the conductances from [`Self::conductances`].
+    fn stable_step(&self) -> f64 {
+        let mut best = f64::INFINITY;
+        for &i in &self.live {
+            if self.gsum[i] > 0.0 {
+                best = best.min(self.mass[i] * self.capacity[i] / self.gsum[i]);
+            }
+        }
+        best
+    }
+
+    /// True when a step of `dt` is within 0.9 of every node's limit (multiplications only).
+    fn stable_for(&self, dt: f64) -> bool {
+        self.live
+            .iter()
+            .all(|&i| dt * self.gsum[i] <= 0.9 * self.mass[i] * self.capacity[i])
+    }
+
+    /// Advances by `dt` seconds with configuration `config` (None: power off), in as many equal
+    /// sub-steps as stability needs. Returns the sub-step used.
+    pub fn advance(&mut self, dt: f64, config: Option<usize>, maps: &Maps) -> f64 {
+        self.conductances();
+        // (A limit below 1 ms would mean a degenerate material; the floor keeps the loop finite.)
+        let parts = if self.stable_for(dt) {
+            1
+        } else {
+            (dt / (0.9 * self.stable_step()).max(1e-3)).ceil() as usize
+        };
+        let sub = dt / parts as f64;
+        for part in 0..parts {
+            if part > 0 {
+                self.conductances();
+            }
+            self.substep(sub, config, maps);
+        }
+        sub
+    }
+
+    fn substep(&mut self, dt: f64, config: Option<usize>, maps: &Maps) {
+        let dx = self.load.tray.cell_size;
+        let cells = self.load.tray.cells();
+        self.flux.iter_mut().for_each(|f| *f = 0.0);
+        for (p, g) in self.pairs.iter().zip(&self.cond) {
+            let q = g * (self.temp[p.b] - self.temp[p.a]);
+            self.flux[p.a] += q;
+            self.flux[p.b] -= q;
+        }
+        let top = self.settings.surface_h * dx * dx;
+        let mut dried = false;
+        for idx in 0..self.live.len() {
+            let i = self.live[idx];
+            let mat = self.material(i);
+            let mut q = self.flux[i] - top * self.top[i] * (self.temp[i] - self.settings.air);
+            if self.edge_area[i] > 0.0 {
+                q += self.k[i] * self.edge_area[i] / dx * (self.edge_temp[i] - self.temp[i]);
+            }
+            if let Some(c) = config {
+                // The map's rate is the column's mean at the reference state: its power, split
+                // by depth, scaled by this node's absorption now.
+                q += maps.rates[c * cells + self.cell[i]]
+                    * self.column_mass[i]
+                    * self.share[i]
+                    * mat.reference_cp
+                    * 1000.0
+                    * self.absorb[i];
+            }
+            self.energy[i] += dt * q / 1000.0;
+            // Boiling: the enthalpy above the boiling point leaves as vapour.
+            let h_boil = mat.boiling_enthalpy();
+            if self.water_left[i] > 0.0 && self.energy[i] > h_boil * self.mass[i] {
+                let d = ((self.energy[i] - h_boil * self.mass[i]) / LATENT_VAPORISATION)
+                    .min(self.water_left[i]);
+                self.energy[i] -= d * (h_boil + LATENT_VAPORISATION);
+                self.mass[i] -= d;
+                self.water_left[i] -= d;
+                self.evaporated[i] += d;
+                // Nothing left but a trace (pure water boiled away): the node is gone.
+                if self.mass[i] <= 1e-9 * self.mass0[i] {
+                    self.mass[i] = 0.0;
+                    self.energy[i] = 0.0;
+                    dried = true;
+                    continue;
+                }
+            }
+            self.set_state(i);
+        }
+        if dried {
+            let gone: Vec<usize> = self
+                .live
+                .iter()
+                .copied()
+                .filter(|&i| self.mass[i] == 0.0)
+                .collect();
+            for i in gone {
+                self.dry_out(i);
+            }
+        }
+    }
+
+    /// The cell of the first node whose temperature is not a finite number, if any.
+    pub fn non_finite(&self) -> Option<usize> {
+        self.temp
+            .iter()
+            .position(|t| !t.is_finite())
+            .map(|node| self.cell[node])
+    }
+
+    /// The nodes of cell `i`, top layer first.
+    pub fn nodes(&self, i: usize) -> std::ops::Range<usize> {
+        self.first[i]..self.first[i] + self.layers[i]
+    }
+}

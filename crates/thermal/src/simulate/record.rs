@@ -1,0 +1,145 @@
+//! What the simulation reports: per cell its coldest point, mean and surface; per item the
+//! coldest point, mean and hottest point over time.
+
+use super::model::Model;
+use super::{ItemCurve, View};
+use crate::composition::BOILING_POINT;
+
+/// One view of each cell's column, NaN for empty cells.
+pub(super) struct Columns {
+    /// Coldest node, °C.
+    pub coldest: Vec<f64>,
+    /// Depth of the coldest node's centre below the top face, m.
+    pub coldest_depth: Vec<f64>,
+    /// Water evaporated from the coldest node, per kg of that node's starting mass.
+    pub coldest_evaporated: Vec<f64>,
+    /// Mass-weighted mean, °C.
+    pub mean: Vec<f64>,
+    /// Top layer, °C.
+    pub surface: Vec<f64>,
+    /// Hottest node, °C.
+    pub hottest: Vec<f64>,
+    /// Energy held, kJ (enthalpy zero at −40 °C).
+    pub energy: Vec<f64>,
+}
+
+impl Columns {
+    pub fn of(m: &Model) -> Self {
+        let n = m.load.tray.cells();
+        let mut v = Columns {
+            coldest: vec![f64::NAN; n],
+            coldest_depth: vec![f64::NAN; n],
+            coldest_evaporated: vec![f64::NAN; n],
+            mean: vec![f64::NAN; n],
+            surface: vec![f64::NAN; n],
+            hottest: vec![f64::NAN; n],
+            energy: vec![f64::NAN; n],
+        };
+        for &i in &m.filled {
+            let nodes = m.nodes(i);
+            let (mut lo, mut hi, mut at) = (f64::INFINITY, f64::NEG_INFINITY, 0);
+            let (mut sum, mut mass) = (0.0, 0.0);
+            for (l, node) in nodes.clone().enumerate() {
+                let t = m.temp[node];
+                if t < lo {
+                    lo = t;
+                    at = l;
+                }
+                hi = hi.max(t);
+                sum += t * m.mass[node];
+                mass += m.mass[node];
+            }
+            v.coldest[i] = lo;
+            v.coldest_depth[i] = (at as f64 + 0.5) * m.dz[nodes.start];
+            let node = nodes.start + at;
+            v.coldest_evaporated[i] = m.evaporated[node] / m.mass0[node];
+            v.hottest[i] = hi;
+            v.energy[i] = m.energy[nodes.clone()].iter().sum();
+            v.surface[i] = m.temp[nodes.start];
+            // A column that boiled away entirely has no mass left: it holds at the boiling point.
+            v.mean[i] = if mass > 0.0 {
+                sum / mass
+            } else {
+                BOILING_POINT
+            };
+        }
+        v
+    }
+
+    /// The view asked for.
+    fn into_view(self, view: View) -> Vec<f64> {
+        match view {
+            View::Coldest => self.coldest,
+            View::Mean => self.mean,
+            View::Surface => self.surface,
+        }
+    }
+}
+
+pub(super) struct Recorder {
+    pub times: Vec<f64>,
+    pub frames: Vec<Vec<f64>>,
+    pub items: Vec<ItemCurve>,
+    pub peak: Vec<f64>,
+    pub next: f64,
+    view: View,
+}
+
+impl Recorder {
+    pub fn new(m: &Model, items: usize, view: View) -> Self {
+        Recorder {
+            times: vec![],
+            frames: vec![],
+            items: vec![ItemCurve::default(); items],
+            peak: Columns::of(m).hottest,
+            next: 0.0,
+            view,
+        }
+    }
+
+    pub fn record(&mut self, t: f64, m: &Model) {
+        self.times.push(t);
+        self.frames.push(Columns::of(m).into_view(self.view));
+        let k = self.items.len();
+        let (mut lo, mut hi) = (vec![f64::INFINITY; k], vec![f64::NEG_INFINITY; k]);
+        let (mut sum, mut mass) = (vec![0.0; k], vec![0.0; k]);
+        for &i in &m.filled {
+            let it = m.load.cells[i].expect("filled").item;
+            for node in m.nodes(i) {
+                lo[it] = lo[it].min(m.temp[node]);
+                hi[it] = hi[it].max(m.temp[node]);
+                sum[it] += m.temp[node] * m.mass[node];
+                mass[it] += m.mass[node];
+            }
+        }
+        // An item that boiled away entirely has no mass left: its mean is the boiling point.
+        for it in 0..k {
+            if mass[it] == 0.0 && lo[it].is_finite() {
+                sum[it] = BOILING_POINT;
+                mass[it] = 1.0;
+            }
+        }
+        for (it, curve) in self.items.iter_mut().enumerate() {
+            let empty = mass[it] == 0.0;
+            curve.min.push(if empty { f64::NAN } else { lo[it] });
+            curve.max.push(if empty { f64::NAN } else { hi[it] });
+            curve
+                .mean
+                .push(if empty { f64::NAN } else { sum[it] / mass[it] });
+        }
+    }
+
+    pub fn track(&mut self, t: f64, m: &Model, every: f64) {
+        for &i in &m.filled {
+            for node in m.nodes(i) {
+                self.peak[i] = self.peak[i].max(m.temp[node]);
+            }
+        }
+        if t + 1e-9 >= self.next {
+            self.record(t, m);
+            while self.next <= t + 1e-9 {
+                self.next += every;
+            }
+        }
+    }
+}

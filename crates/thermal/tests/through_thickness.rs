@@ -1,0 +1,201 @@
+//! Through the thickness: layered conduction with Lambert's-law deposition against SciPy's
+//! method-of-lines solution of the same PDE, the penetration depth against published values, the
+//! coldest point of a thick piece, and convergence in the layer count.
+
+use traycast_thermal::catalogue;
+use traycast_thermal::dielectric::penetration_depth;
+use traycast_thermal::material::Material;
+use traycast_thermal::safety;
+use traycast_thermal::schedule::Schedule;
+use traycast_thermal::simulate::*;
+
+/// One column of food, `thickness` m, alone on a one-cell tray, heated at `rate` K/s (its column
+/// mean) for `heat` s and then standing `stand` s.
+fn column(
+    mat: &Material,
+    thickness: f64,
+    start: f64,
+    rate: f64,
+    heat: f64,
+    settings: Settings,
+) -> TimeCourse {
+    let items = [mat.clone()];
+    let cells = [Some(CellFill { item: 0, thickness })];
+    let load = Load {
+        tray: Tray {
+            width: 1,
+            height: 1,
+            cell_size: 0.02,
+        },
+        items: &items,
+        cells: &cells,
+        start: &[start],
+    };
+    let maps = Maps {
+        configs: 1,
+        rates: &[rate],
+    };
+    simulate(&load, &maps, &Schedule::blocks(&[heat]), &settings).unwrap()
+}
+
+fn num(v: &serde_json::Value, key: &str) -> f64 {
+    v[key].as_f64().unwrap_or_else(|| panic!("{key}"))
+}
+
+/// SciPy reference: tests/fixtures/thermal/slab_reference.json, written by make_slab.py beside it
+/// (scipy.integrate.solve_ivp, BDF, on 400 finite volumes, averaged over our layers). With our
+/// default layers (4 mm at most, half the penetration depth at most) the coldest point and the
+/// mean agree within 0.5 K after heating and after standing. The surface layer is allowed 1.5 K:
+/// one 4 mm node stands for the steepest part of the deposition profile (measured 1.2 K); the
+/// safety judgement never uses it.
+#[test]
+fn layered_column_matches_scipy_method_of_lines() {
+    let text = include_str!("../../../tests/fixtures/thermal/slab_reference.json");
+    let doc: serde_json::Value = serde_json::from_str(text).unwrap();
+    for case in doc["cases"].as_array().unwrap() {
+        let name = case["name"].as_str().unwrap();
+        let mat = Material::constant(num(case, "rho"), num(case, "cp") / 1000.0, num(case, "k"))
+            .unwrap()
+            .with_penetration_depth(num(case, "dp"))
+            .unwrap();
+        let settings = Settings {
+            surface_h: num(case, "h"),
+            air: num(case, "air"),
+            standing: num(case, "stand"),
+            bottom_entry: num(case, "bottom"),
+            ..Settings::default()
+        };
+        let h = num(case, "thickness");
+        let course = column(
+            &mat,
+            h,
+            num(case, "start"),
+            num(case, "rate"),
+            num(case, "heat"),
+            settings,
+        );
+        let layers = case["layers"].as_u64().unwrap() as usize;
+        assert_eq!(course.layers[0], layers, "{name}: layer count");
+        let want: Vec<f64> = case["after_standing_layers"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        let coldest = want.iter().copied().fold(f64::INFINITY, f64::min);
+        assert!(
+            (course.after_standing[0] - coldest).abs() < 0.5,
+            "{name}: coldest {} vs SciPy {coldest}",
+            course.after_standing[0]
+        );
+        assert!(
+            (course.surface_after_standing[0] - want[0]).abs() < 1.5,
+            "{name}: surface {} vs SciPy {}",
+            course.surface_after_standing[0],
+            want[0]
+        );
+        let mean = num(case, "after_standing_mean");
+        assert!(
+            (course.mean_after_standing[0] - mean).abs() < 0.5,
+            "{name}: mean {} vs SciPy {mean}",
+            course.mean_after_standing[0]
+        );
+        let heated: Vec<f64> = case["end_of_heating_layers"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        let coldest_hot = heated.iter().copied().fold(f64::INFINITY, f64::min);
+        assert!(
+            (course.end_of_heating[0] - coldest_hot).abs() < 0.5,
+            "{name}: coldest at power-off {} vs SciPy {coldest_hot}",
+            course.end_of_heating[0]
+        );
+    }
+}
+
+/// Power penetration depth at 2.45 GHz from ε′, ε″ against the values in
+/// shared/reference/physics.md §3.2–3.3: water at 20 °C (ELL07 ε′ 78.58, ε″ 10.80) 1.60 cm, at
+/// 60 °C (66.58 / 3.82) 4.16 cm; potato (Datta & Ramaswamy 2001, 57 / 17) 0.87 cm; solid milk fat
+/// (2.6 / 0.2) 15.7 cm. The reference rounds to 0.01 cm (0.1 cm for fat).
+#[test]
+fn penetration_depths_match_published_values() {
+    for (eps, loss, cm, tol) in [
+        (78.58, 10.80, 1.60, 0.006),
+        (66.58, 3.82, 4.16, 0.006),
+        (57.0, 17.0, 0.87, 0.006),
+        (2.6, 0.2, 15.7, 0.06),
+    ] {
+        let got = penetration_depth(eps, loss) * 100.0;
+        assert!(
+            (got - cm).abs() < tol,
+            "ε′ {eps} ε″ {loss}: {got:.3} cm vs {cm}"
+        );
+    }
+    assert!(penetration_depth(3.0, 0.0).is_infinite());
+}
+
+/// The case behind the depth model (physics.md §8.1, an independent 1-D estimate from memory):
+/// a 50 mm chicken piece at 0.20 K/s column mean for 360 s from both faces, standing 120 s,
+/// ends with its centre near 42–48 °C while its mean is near 75 °C. The coldest point must show
+/// that, and the verdict must fail, however warm the column average is.
+#[test]
+fn a_thick_chicken_breast_is_judged_at_its_cold_centre() {
+    let food = catalogue::find("chicken-breast").unwrap();
+    let mat = Material::food(&food.composition(), food.loss).unwrap();
+    let settings = Settings {
+        bottom_entry: 0.5,
+        ..Settings::default()
+    };
+    let course = column(&mat, 0.05, 5.0, 0.20, 360.0, settings);
+    let (coldest, mean) = (course.after_standing[0], course.mean_after_standing[0]);
+    assert!(coldest < 55.0, "coldest point {coldest}");
+    assert!(mean > 65.0, "column mean {mean}");
+    let depth = course.coldest_depth[0];
+    assert!((0.015..0.035).contains(&depth), "coldest at {depth} m");
+    assert!(!safety::verdict(food.safety, &[coldest], course.standing_seconds).safe);
+}
+
+/// Halving every layer moves a thick piece's coldest point by less than 0.5 K.
+#[test]
+fn the_coldest_point_converges_in_the_layer_count() {
+    let food = catalogue::find("chicken-breast").unwrap();
+    let mat = Material::food(&food.composition(), food.loss).unwrap();
+    let run = |max_layer: f64| {
+        let s = Settings {
+            max_layer,
+            bottom_entry: 0.5,
+            ..Settings::default()
+        };
+        column(&mat, 0.05, 5.0, 0.20, 360.0, s)
+    };
+    let (coarse, fine) = (run(0.004), run(0.001));
+    assert!(fine.layers[0] > 2 * coarse.layers[0]);
+    let gap = (coarse.after_standing[0] - fine.after_standing[0]).abs();
+    assert!(
+        gap < 0.5,
+        "coarse {} fine {}",
+        coarse.after_standing[0],
+        fine.after_standing[0]
+    );
+}
+
+/// With no losses the column keeps every joule the map delivers, however it is layered:
+/// Σ m·ΔH = rate × column mass × cp × time (physics.md §5.2 item 4 in layered form).
+#[test]
+fn layers_conserve_the_column_energy() {
+    let mat = Material::constant(1000.0, 4.0, 0.5)
+        .unwrap()
+        .with_penetration_depth(0.008)
+        .unwrap();
+    let settings = Settings {
+        surface_h: 0.0,
+        standing: 0.0,
+        ..Settings::default()
+    };
+    let course = column(&mat, 0.04, 10.0, 0.25, 120.0, settings);
+    // Constant cp: the mean rise is exactly rate × time.
+    assert!((course.mean_after_standing[0] - (10.0 + 0.25 * 120.0)).abs() < 1e-9);
+    assert!(course.surface_after_standing[0] > course.after_standing[0] + 5.0);
+}
