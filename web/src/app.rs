@@ -432,7 +432,7 @@ pub fn App() -> impl IntoView {
                 let budget = p.oven.budget_s.map_or("no budget".to_string(), |b| format!("of {b:.0} s"));
                 view! {
                     <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
-                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest"</th><th>"mean"</th><th>"warmest"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"coldest-cell verdict"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
+                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"verdict (coldest point)"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
                     <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", if u == Unit::Celsius { "K" } else { "°F" })}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
                     <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
                     <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>

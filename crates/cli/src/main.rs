@@ -54,7 +54,7 @@ enum Command {
     },
     /// Turn recorded heating runs into a map library with standard errors, and report their quality.
     Calibrate(calibrate::Args),
-    /// Solve a plan and report dwells, zones, coldest-cell verdicts and the unsteered baseline.
+    /// Solve a plan and report dwells, zones, coldest-point verdicts and the unsteered baseline.
     Solve(solve::SolveArgs),
     /// Simulate a plan's time course and write per-food curves as CSV.
     Simulate(solve::SimulateArgs),

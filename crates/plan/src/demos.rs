@@ -68,7 +68,7 @@ pub fn demo(name: &str) -> Option<Plan> {
                 item("Vanilla pudding", "vanilla-pudding", 25.0, 4.0),
             ];
             p.zones = vec![
-                // Bands sit above the safe minimum so the coldest cell, not the average, clears it.
+                // Bands sit above the safe minimum so the coldest point, not the average, clears it.
                 zone("Chicken 85–98 °C", 85.0, 98.0, 3.0, None),
                 zone("Rice 82–96 °C", 82.0, 96.0, 1.0, None),
                 zone("Broccoli 65–75 °C", 65.0, 75.0, 1.0, None),

@@ -10,7 +10,7 @@
 //! - [`calibrate`]: runs → map library with standard errors, fill flags and a quality report,
 //!   with the least-squares line it fits ([`calibrate::fit_line`]).
 //! - [`evaluate`]: plan + maps → dwell solve → linear prediction → simulated time course →
-//!   errors, band coverage, coldest-cell verdicts, unsteered baseline, feasibility diagnosis.
+//!   errors, band coverage, coldest-point verdicts, unsteered baseline, feasibility diagnosis.
 //! - [`robustness`]: the plan's schedule with the foods placed one cell off.
 //! - [`wire`]: plan JSON, share links, schedule CSV — versioned boundary formats.
 //! - [`summary`]: the evaluation as one JSON object, shared by the command line and the workbench.

@@ -578,15 +578,19 @@ fn interval_propagation_matches_sampling() {
         if bounds.upper[i] >= 99.9 {
             continue; // clamped at boiling
         }
-        let energy = m.enthalpy(after) - m.enthalpy(p.items[k].start_c);
-        let expected = evaluate::Z95 * sd / mean * energy;
+        // The lower bound belongs to the cell's coldest point, the upper to its hottest.
+        let hot = e.course.hottest_after_standing[i];
+        let start = m.enthalpy(p.items[k].start_c);
+        let expected = evaluate::Z95 * sd / mean * (m.enthalpy(after) - start);
+        let expected_hi = evaluate::Z95 * sd / mean * (m.enthalpy(hot) - start);
         let (lo, hi) = (
             m.enthalpy(after) - m.enthalpy(bounds.lower[i]),
-            m.enthalpy(bounds.upper[i]) - m.enthalpy(after),
+            m.enthalpy(bounds.upper[i]) - m.enthalpy(hot),
         );
         assert!(
-            (lo - expected).abs() < 0.05 * expected && (hi - expected).abs() < 0.05 * expected,
-            "cell {i}: bounds {lo:.3}/{hi:.3} kJ/kg vs sampled {expected:.3}"
+            (lo - expected).abs() < 0.05 * expected
+                && (hi - expected_hi).abs() < 0.05 * expected_hi,
+            "cell {i}: bounds {lo:.3}/{hi:.3} kJ/kg vs sampled {expected:.3}/{expected_hi:.3}"
         );
         checked += 1;
     }

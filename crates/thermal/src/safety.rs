@@ -1,4 +1,4 @@
-//! Food-safety rules as data, with their sources, and the coldest-cell verdict.
+//! Food-safety rules as data, with their sources, and the coldest-point verdict.
 //!
 //! Sources (transcribed in shared/reference/physics.md §2):
 //! - USDA FSIS / FoodSafety.gov "Safe Minimum Internal Temperatures" consumer chart; °C by FSIS's
@@ -167,7 +167,7 @@ pub struct Requirement {
     pub source: String,
     /// Limit, °C.
     pub celsius: f64,
-    /// True: the coldest cell must be at least this; false: the warmest cell at most this.
+    /// True: the coldest point must be at least this; false: the warmest point at most this.
     pub minimum: bool,
     /// Standing or rest time the rule assumes, s.
     pub stand_seconds: f64,
@@ -242,7 +242,7 @@ impl SafetyCategory {
     }
 }
 
-/// The coldest-cell verdict for one food item.
+/// The coldest-point verdict for one food item.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Verdict {
     /// True when every requirement holds.
@@ -251,9 +251,9 @@ pub struct Verdict {
     pub binding: Requirement,
     /// Margin against it, K: coldest − limit for a minimum, limit − warmest for a maximum.
     pub margin: f64,
-    /// Coldest cell after standing, °C.
+    /// Coldest point after standing, °C.
     pub coldest: f64,
-    /// Warmest cell after standing, °C.
+    /// Warmest point after standing, °C.
     pub warmest: f64,
     /// True when the simulated standing time is shorter than a rule assumes.
     pub short_stand: bool,

@@ -1,5 +1,5 @@
 //! The evaluation pipeline: plan + maps → problem → solve → linear prediction → time course →
-//! errors, band coverage, coldest-cell verdicts, baseline, diagnosis.
+//! errors, band coverage, coldest-point verdicts, baseline, diagnosis.
 //!
 //! - `maps`: the plan's heating maps (field model or library) and where they come from;
 //! - `problem`: bands, start temperatures, the (warm) solve with its hard caps, the quantum, the

@@ -25,16 +25,17 @@ pub struct ZoneSummary {
 /// One food item's outcome.
 #[derive(Clone, Debug, PartialEq)]
 pub struct ItemSummary {
-    /// Coldest cell after standing, °C.
+    /// Coldest point after standing (the coldest layer of any of its cells), °C.
     pub min: f64,
     /// Mass-weighted mean after standing, °C.
     pub mean: f64,
-    /// Warmest cell after standing, °C.
+    /// Warmest point after standing (of the coldest layers' temperatures; see the time course for
+    /// the hottest layer), °C.
     pub max: f64,
     /// Share of the item's zoned cells inside their band after standing (NaN if none is zoned).
     pub in_band: f64,
-    /// The coldest-cell food-safety verdict; with calibrated maps it is judged on the bounds
-    /// (the coldest cell's lower bound, the warmest cell's upper bound).
+    /// The coldest-point food-safety verdict; with calibrated maps it is judged on the bounds
+    /// (the coldest point's lower bound, the warmest point's upper bound).
     pub verdict: Verdict,
     /// Water evaporated, g.
     pub moisture_g: f64,
@@ -46,11 +47,11 @@ pub struct ItemSummary {
 /// bounds the quantity when every cell is within its own 95 % interval.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Spread {
-    /// Coldest cell, °C (lower, upper).
+    /// Coldest point, °C (lower, upper).
     pub coldest: (f64, f64),
     /// Mean over the cells, °C (lower, upper).
     pub mean: (f64, f64),
-    /// Warmest cell, °C (lower, upper).
+    /// Warmest point, °C (lower, upper).
     pub warmest: (f64, f64),
     /// The verdict on the nominal temperatures, for comparison.
     pub nominal: Verdict,

@@ -18,7 +18,10 @@ use traycast_thermal::simulate::TimeCourse;
 /// the food's enthalpy curve: a cell whose energy may fall short ends its lower bound on the thaw
 /// plateau rather than below it, and a boiling cell first loses the energy that only evaporated
 /// water. Conduction between cells (which averages errors out) is neglected, which widens the
-/// bounds; upper bounds stop at 100 °C.
+/// bounds; upper bounds stop at 100 °C. Lower bounds belong to each cell's coldest point, upper
+/// bounds to its hottest point (what a cold-holding rule is judged on); the hottest point's energy
+/// leaves out what it evaporated, which only matters above the boiling point, where the bound is
+/// clamped anyway.
 pub fn cell_bounds(
     plan: &Plan,
     maps: &PlanMaps,
@@ -45,7 +48,13 @@ pub fn cell_bounds(
         let absorbed = h - m.enthalpy(plan.items[k].start_c) + evaporated;
         let de = Z95 * rel * absorbed.abs();
         lower[i] = m.state((h + evaporated - de).min(h), &mut 0).0.min(after);
-        upper[i] = m.state(h + de, &mut 0).0.clamp(after, 100.0f64.max(after));
+        let hot = course.hottest_after_standing[i];
+        let h_hot = m.enthalpy(hot);
+        let de_hot = Z95 * rel * (h_hot - m.enthalpy(plan.items[k].start_c)).abs();
+        upper[i] = m
+            .state(h_hot + de_hot, &mut 0)
+            .0
+            .clamp(hot, 100.0f64.max(hot));
     }
     CellBounds { lower, upper }
 }
@@ -63,19 +72,24 @@ pub(super) fn item_summaries(
     (0..plan.items.len())
         .map(|k| {
             let cells_k = &prep.item_cells()[k];
+            // Hot rules judge each cell's coldest point, cold-holding rules its hottest.
             let temps: Vec<f64> = cells_k.iter().map(|&i| course.after_standing[i]).collect();
+            let hot: Vec<f64> = cells_k
+                .iter()
+                .map(|&i| course.hottest_after_standing[i])
+                .collect();
             let zoned: Vec<f64> = cells_k
                 .iter()
                 .map(|&i| error_simulated[i])
                 .filter(|v| v.is_finite())
                 .collect();
             let cat = plan.catalogue_food(k).expect("validated");
-            let temps = if temps.is_empty() {
-                vec![f64::NAN]
+            let (temps, hot) = if temps.is_empty() {
+                (vec![f64::NAN], vec![f64::NAN])
             } else {
-                temps
+                (temps, hot)
             };
-            let nominal = safety::verdict(cat.safety, &temps, plan.oven.standing_s);
+            let nominal = safety::verdict_within(cat.safety, &temps, &hot, plan.oven.standing_s);
             let (mean, stood) = (course.items[k].mean[last], plan.oven.standing_s);
             let (verdict, spread) = match bounds {
                 Some(b) if !cells_k.is_empty() => {
@@ -83,11 +97,12 @@ pub(super) fn item_summaries(
                     let hi: Vec<f64> = cells_k.iter().map(|&i| b.upper[i]).collect();
                     let fold =
                         |v: &[f64], f: fn(f64, f64) -> f64, start| v.iter().copied().fold(start, f);
-                    let shift = |v: &[f64]| {
+                    // How far a bound sits from the point it bounds, averaged over the cells.
+                    let shift = |v: &[f64], base: &[f64]| {
                         cells_k
                             .iter()
                             .zip(v)
-                            .map(|(&i, x)| x - course.after_standing[i])
+                            .map(|(&i, x)| x - base[i])
                             .sum::<f64>()
                             / cells_k.len() as f64
                     };
@@ -96,7 +111,10 @@ pub(super) fn item_summaries(
                             fold(&lo, f64::min, f64::INFINITY),
                             fold(&hi, f64::min, f64::INFINITY),
                         ),
-                        mean: (mean + shift(&lo), mean + shift(&hi)),
+                        mean: (
+                            mean + shift(&lo, &course.after_standing),
+                            mean + shift(&hi, &course.hottest_after_standing),
+                        ),
                         warmest: (
                             fold(&lo, f64::max, f64::NEG_INFINITY),
                             fold(&hi, f64::max, f64::NEG_INFINITY),

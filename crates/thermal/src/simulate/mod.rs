@@ -212,6 +212,8 @@ pub struct TimeCourse {
     pub end_of_heating: Vec<f64>,
     /// Coldest point of each cell after the standing time, °C.
     pub after_standing: Vec<f64>,
+    /// Hottest point of each cell (its hottest layer) after the standing time, °C.
+    pub hottest_after_standing: Vec<f64>,
     /// Depth of each cell's coldest point below its top face after the standing time, m.
     pub coldest_depth: Vec<f64>,
     /// Water evaporated from each cell's coldest point (its coldest layer) by the end of the
@@ -308,6 +310,7 @@ pub fn simulate(
         peak: rec.peak,
         end_of_heating,
         after_standing: last.coldest,
+        hottest_after_standing: last.hottest,
         coldest_depth: last.coldest_depth,
         coldest_evaporated: last.coldest_evaporated,
         mean_after_standing: last.mean,
