@@ -66,6 +66,24 @@ pub enum Sequencing {
     Rounds(u16),
 }
 
+/// How microwave power enters the food on this tray.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Heating {
+    /// Share of each cell's power that enters through the tray from below (0 to 1): 0 for a tray
+    /// that lets no energy through its base, 0.5 for food heated equally from both faces. The
+    /// rest enters through the top face.
+    pub from_below: f64,
+}
+
+impl Default for Heating {
+    /// All power from the top: the conservative choice for the coldest point (a thick piece
+    /// heated from one face keeps its far side coldest) while the tray's own share is unknown.
+    /// Common practice, not a measured value.
+    fn default() -> Self {
+        Heating { from_below: 0.0 }
+    }
+}
+
 /// Oven and controller settings.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Oven {
@@ -123,6 +141,8 @@ pub struct Plan {
     pub zone: Vec<u8>,
     /// Oven settings.
     pub oven: Oven,
+    /// How power enters the food (top face, tray base).
+    pub heating: Heating,
     /// Map source.
     pub maps: MapSource,
 }
@@ -338,6 +358,13 @@ impl Plan {
                 "rounds must be 1 to 100",
             )?;
         }
+        finite_in!(
+            self.heating.from_below,
+            0.0,
+            1.0,
+            "heating.from_below",
+            "share of power entering from below",
+        )?;
         Ok(())
     }
 
@@ -356,6 +383,7 @@ impl Plan {
             zones: vec![],
             zone: vec![0; n],
             oven: Oven::default(),
+            heating: Heating::default(),
             maps: MapSource::Synthetic { seed: 1 },
         }
     }

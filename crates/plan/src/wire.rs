@@ -1,24 +1,28 @@
-//! File and link formats of our own: plan JSON ("traycast-plan" version 2; version 1 is read), the
-//! share link ("tc2." + URL-safe base64 of deflated postcard bytes, a trailer after the plan
-//! carrying the library's content hash; "tc1." links are read), and the controller schedule CSV.
+//! File and link formats of our own: plan JSON ("traycast-plan" version 3; versions 1 and 2 are
+//! read), the share link ("tc3." + URL-safe base64 of deflated postcard bytes, a trailer after
+//! the plan carrying the library's content hash and how power enters the food; "tc2." and "tc1."
+//! links are read), and the controller schedule CSV.
 //!
 //! These types are the boundary: versioned, separate from [`crate::model`], and every field is
 //! validated on the way in. Untrusted input becomes a [`PlanError`], never a panic.
 
 use crate::error::{Place, PlanError};
-use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
+use crate::model::{FoodItem, Heating, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
 use base64::Engine;
 use serde::{Deserialize, Serialize};
 use traycast_thermal::safety::CAUTIONS;
 use traycast_thermal::schedule::Schedule;
 
 const FORMAT: &str = "traycast-plan";
-/// The version written. Version 2 added the library's content hash; version 1 is still read.
-const VERSION: u32 = 2;
+/// The version written. Version 2 added the library's content hash, version 3 how power enters
+/// the food (`heating`); versions 1 and 2 are still read (with the default heating).
+const VERSION: u32 = 3;
 /// Versions read.
-const READS: [u32; 2] = [1, 2];
+const READS: [u32; 3] = [1, 2, 3];
 /// Prefix of a share link's payload (format tag and version).
-pub const LINK_TAG: &str = "tc2.";
+pub const LINK_TAG: &str = "tc3.";
+/// The second link format, still read: its trailer has only the library hash.
+pub const LINK_TAG_V2: &str = "tc2.";
 /// The first link format, still read: the same payload without the trailer.
 pub const LINK_TAG_V1: &str = "tc1.";
 /// Longest link payload accepted, characters.
@@ -44,19 +48,37 @@ struct PlanDoc {
     maps: MapsDoc,
 }
 
-/// The plan file: the plan document and, since version 2, the library's content hash (hex).
+/// The plan file: the plan document and, since version 2, the library's content hash (hex); since
+/// version 3, how power enters the food.
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
 struct PlanFile {
     #[serde(flatten)]
     doc: PlanDoc,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     library_hash: Option<String>,
+    /// Since version 3; absent in older files, which get the default.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    heating: Option<HeatingDoc>,
 }
 
-/// What a version-2 link carries after the plan document (postcard is positional, so additions go
-/// in a trailer that version-1 links simply lack).
-#[derive(Serialize, Deserialize, Debug, Clone, PartialEq, Default)]
+/// How power enters the food (version 3).
+#[derive(Serialize, Deserialize, Debug, Clone, Copy, PartialEq)]
+struct HeatingDoc {
+    /// Share of each cell's power entering through the tray from below, 0 to 1.
+    from_below: f64,
+}
+
+/// What a version-3 link carries after the plan document (postcard is positional, so additions go
+/// in a trailer: version-1 links lack it, version-2 links have only the hash).
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
 struct LinkTrailer {
+    library_hash: Option<u64>,
+    from_below: f64,
+}
+
+/// The version-2 trailer.
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq, Default)]
+struct LinkTrailerV2 {
     library_hash: Option<u64>,
 }
 
@@ -323,6 +345,7 @@ impl TryFrom<PlanDoc> for Plan {
                 })
                 .collect(),
             zone,
+            heating: Heating::default(),
             oven: Oven {
                 power_w: d.oven.power_w,
                 configs: d.oven.configs as usize,
@@ -349,6 +372,9 @@ pub fn to_json(plan: &Plan) -> String {
     let file = PlanFile {
         doc: PlanDoc::from(plan),
         library_hash: library_hash(plan).map(|h| format!("{h:016x}")),
+        heating: Some(HeatingDoc {
+            from_below: plan.heating.from_below,
+        }),
     };
     serde_json::to_string_pretty(&file).expect("plans serialise")
 }
@@ -366,7 +392,12 @@ pub fn from_json(text: &str) -> Result<Plan, PlanError> {
             )
         })?),
     };
-    Ok(with_hash(Plan::try_from(file.doc)?, hash))
+    let mut plan = with_hash(Plan::try_from(file.doc)?, hash);
+    if let Some(h) = file.heating {
+        plan.heating.from_below = h.from_below;
+        plan.validate()?;
+    }
+    Ok(plan)
 }
 
 /// The share-link payload for the URL fragment.
@@ -374,6 +405,7 @@ pub fn to_link(plan: &Plan) -> String {
     let mut bytes = postcard::to_allocvec(&PlanDoc::from(plan)).expect("plans serialise");
     let trailer = LinkTrailer {
         library_hash: library_hash(plan),
+        from_below: plan.heating.from_below,
     };
     bytes.extend(postcard::to_allocvec(&trailer).expect("trailers serialise"));
     let packed = miniz_oxide::deflate::compress_to_vec(&bytes, 9);
@@ -393,10 +425,13 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
             link.len()
         )));
     }
-    let (body, v1) = match (link.strip_prefix(LINK_TAG), link.strip_prefix(LINK_TAG_V1)) {
-        (Some(body), _) => (body, false),
-        (None, Some(body)) => (body, true),
-        (None, None) => {
+    let tagged = [LINK_TAG, LINK_TAG_V2, LINK_TAG_V1]
+        .into_iter()
+        .enumerate()
+        .find_map(|(k, tag)| link.strip_prefix(tag).map(|body| (body, 3 - k)));
+    let (body, version) = match tagged {
+        Some(found) => found,
+        None => {
             if link.starts_with("tc") && link.contains('.') {
                 return Err(at(format!(
                     "uses format '{}', which this version cannot read (it reads '{LINK_TAG}')",
@@ -424,13 +459,24 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
     })?;
     let unreadable = |e: postcard::Error| at(format!("holds data this version cannot read ({e})"));
     let (doc, rest): (PlanDoc, &[u8]) = postcard::take_from_bytes(&bytes).map_err(unreadable)?;
-    let trailer = if v1 {
-        LinkTrailer::default()
-    } else {
-        postcard::from_bytes(rest).map_err(unreadable)?
+    let trailer = match version {
+        1 => LinkTrailer {
+            library_hash: None,
+            from_below: Heating::default().from_below,
+        },
+        2 => {
+            let old: LinkTrailerV2 = postcard::from_bytes(rest).map_err(unreadable)?;
+            LinkTrailer {
+                library_hash: old.library_hash,
+                from_below: Heating::default().from_below,
+            }
+        }
+        _ => postcard::from_bytes(rest).map_err(unreadable)?,
     };
-    let plan = Plan::try_from(doc)
-        .map_err(|e| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message))?;
+    let in_link = |e: PlanError| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message);
+    let mut plan = Plan::try_from(doc).map_err(in_link)?;
+    plan.heating.from_below = trailer.from_below;
+    plan.validate().map_err(in_link)?;
     Ok(with_hash(plan, trailer.library_hash))
 }
 

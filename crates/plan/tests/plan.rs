@@ -5,7 +5,7 @@ use proptest::prelude::*;
 use traycast_plan::Place;
 use traycast_plan::evaluate::{self, Evaluator, Options};
 use traycast_plan::library::{MapLibrary, RateBasis, RecordedLoad, Uncertainty, Window};
-use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
+use traycast_plan::model::{FoodItem, Heating, MapSource, Plan, Sequencing, Zone};
 use traycast_plan::{demos, wire};
 use traycast_solver::{DwellSolver, Rates, Spec};
 use traycast_thermal::dielectric::LossClass;
@@ -315,6 +315,29 @@ fn old_formats_open_and_the_library_hash_travels() {
     assert_eq!(
         wire::from_json(&bad).unwrap_err().place,
         Place::from("library_hash")
+    );
+    // Version 2 files and `tc2.` links (before `heating`) open with the default heating.
+    let v2_file = wire::from_json(&fixture("side-by-side-v2.json")).unwrap();
+    let v2_link = wire::from_link(fixture("side-by-side-v2.link").trim()).unwrap();
+    assert_eq!(v2_file, demos::demo("side-by-side").unwrap());
+    assert_eq!(v2_link, v2_file);
+    assert_eq!(v2_file.heating, Heating::default());
+}
+
+/// Version 3 carries how power enters the food, in the file and in the link, and refuses a share
+/// outside 0 to 1 at its field.
+#[test]
+fn heating_from_below_travels_and_is_checked() {
+    let mut plan = demos::demo("side-by-side").unwrap();
+    plan.heating.from_below = 0.35;
+    let json = wire::to_json(&plan);
+    assert!(json.contains("\"from_below\": 0.35"), "{json}");
+    assert_eq!(wire::from_json(&json).unwrap(), plan);
+    assert_eq!(wire::from_link(&wire::to_link(&plan)).unwrap(), plan);
+    let bad = json.replace("\"from_below\": 0.35", "\"from_below\": 1.5");
+    assert_eq!(
+        wire::from_json(&bad).unwrap_err().place,
+        Place::from("heating.from_below")
     );
 }
 

@@ -164,6 +164,7 @@ impl Evaluator {
         };
         let settings = Settings {
             standing: plan.oven.standing_s,
+            bottom_entry: plan.heating.from_below,
             ..Settings::default()
         };
         let course = time_course(plan, maps, &self.mats, &schedule, &settings)?;

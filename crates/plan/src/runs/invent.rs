@@ -76,6 +76,7 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         standing: 0.0,
         record_every: recipe.step,
         frames: traycast_thermal::simulate::View::Mean,
+        bottom_entry: plan.heating.from_below,
         ..Settings::default()
     };
     let mut rng = traycast_rng::SplitMix::new(recipe.seed);
