@@ -131,7 +131,8 @@ pub struct Settings {
 
 impl Default for Settings {
     /// h = 10 W/(m²·K), contact 200 W/(m²·K) (assumed), air 25 °C, standing 120 s (FDA Food Code
-    /// 3-401.12), 2 s steps (split where stability asks), a frame every 5 s, insulated edges, layers at most 4 mm, and all power
+    /// 3-401.12), 4 s steps (the configurations' power averaged within each; split where stability
+    /// asks), a frame every 5 s, insulated edges, layers at most 4 mm, and all power
     /// entering from the top. Top-only entry is the conservative assumption for the coldest point
     /// (heated from one face, a thick piece's far side stays coldest); a common-practice default
     /// until the tray's share is known, not a measured value.
@@ -141,7 +142,7 @@ impl Default for Settings {
             contact_conductance: 200.0,
             air: 25.0,
             standing: 120.0,
-            step: 2.0,
+            step: 4.0,
             record_every: 5.0,
             edges: Edges::INSULATED,
             frames: View::Coldest,
@@ -256,16 +257,19 @@ pub fn simulate(
     let mut now = 0.0;
     rec.track(now, &model, settings.record_every);
     let mut used_step = settings.step;
+    // Fixed steps of `settings.step` through the heating (the schedule's own steps are often a
+    // second or two in interleaved rounds), each with the seconds every configuration runs in it,
+    // then through the standing time with the power off.
     let mut run = |model: &mut Model,
                    duration: f64,
-                   config: Option<usize>,
+                   mut power: Box<dyn FnMut(f64) -> Vec<(usize, f64)> + '_>,
                    now: &mut f64,
                    rec: &mut Recorder|
      -> Result<(), ThermalError> {
         let mut left = duration;
         while left > 1e-12 {
             let dt = settings.step.min(left);
-            used_step = used_step.min(model.advance(dt, config, maps));
+            used_step = used_step.min(model.advance(dt, &power(dt), maps));
             left -= dt;
             *now += dt;
             if let Some(cell) = model.non_finite() {
@@ -275,21 +279,27 @@ pub fn simulate(
         }
         Ok(())
     };
-    for step in &schedule.steps {
-        run(
-            &mut model,
-            step.seconds,
-            Some(step.config),
-            &mut now,
-            &mut rec,
-        )?;
-    }
+    let mut cursor = ScheduleCursor::new(schedule);
+    let heating = schedule.total();
+    run(
+        &mut model,
+        heating,
+        Box::new(move |dt| cursor.take(dt)),
+        &mut now,
+        &mut rec,
+    )?;
     let end_of_heating = Columns::of(&model).coldest;
     let heating_seconds = now;
     if rec.times.last() != Some(&now) {
         rec.record(now, &model);
     }
-    run(&mut model, settings.standing, None, &mut now, &mut rec)?;
+    run(
+        &mut model,
+        settings.standing,
+        Box::new(|_| Vec::new()),
+        &mut now,
+        &mut rec,
+    )?;
     if rec.times.last() != Some(&now) {
         rec.record(now, &model);
     }
@@ -324,4 +334,42 @@ pub fn simulate(
         heating_seconds,
         standing_seconds: settings.standing,
     })
+}
+
+/// Walks a schedule in slices of time: which configurations run, for how long, in the next slice.
+struct ScheduleCursor<'s> {
+    steps: &'s [crate::schedule::Step],
+    /// The step being walked, and the seconds of it already used.
+    at: usize,
+    used: f64,
+}
+
+impl<'s> ScheduleCursor<'s> {
+    fn new(schedule: &'s Schedule) -> Self {
+        ScheduleCursor {
+            steps: &schedule.steps,
+            at: 0,
+            used: 0.0,
+        }
+    }
+
+    /// The (configuration, seconds) run in the next `dt` seconds.
+    fn take(&mut self, dt: f64) -> Vec<(usize, f64)> {
+        let mut out = Vec::new();
+        let mut need = dt;
+        while need > 1e-12 && self.at < self.steps.len() {
+            let step = &self.steps[self.at];
+            let take = (step.seconds - self.used).min(need);
+            if take > 0.0 {
+                out.push((step.config, take));
+            }
+            self.used += take;
+            need -= take;
+            if step.seconds - self.used <= 1e-12 {
+                self.at += 1;
+                self.used = 0.0;
+            }
+        }
+        out
+    }
 }

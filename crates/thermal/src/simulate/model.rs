@@ -59,6 +59,8 @@ pub(super) struct Model<'a> {
     capacity: Vec<f64>,
     /// Column mass of each node's cell, kg: converts the map's column rate into watts.
     column_mass: Vec<f64>,
+    /// Per cell, the map rate averaged over the current step, K/s.
+    rate: Vec<f64>,
 }
 
 impl<'a> Model<'a> {
@@ -99,6 +101,7 @@ impl<'a> Model<'a> {
             half_inv_k: vec![],
             capacity: vec![],
             column_mass: vec![],
+            rate: vec![0.0; n],
         };
         for &i in &filled {
             let c = load.cells[i].expect("filled");
@@ -294,9 +297,20 @@ impl<'a> Model<'a> {
             .all(|&i| dt * self.gsum[i] <= 0.9 * self.mass[i] * self.capacity[i])
     }
 
-    /// Advances by `dt` seconds with configuration `config` (None: power off), in as many equal
-    /// sub-steps as stability needs. Returns the sub-step used.
-    pub fn advance(&mut self, dt: f64, config: Option<usize>, maps: &Maps) -> f64 {
+    /// Advances by `dt` seconds during which each configuration in `power` runs for its seconds
+    /// (empty: power off), in as many equal sub-steps as stability needs. Within the step the
+    /// configurations' power is averaged: the oven switches faster than heat moves across a layer.
+    /// Returns the sub-step used.
+    pub fn advance(&mut self, dt: f64, power: &[(usize, f64)], maps: &Maps) -> f64 {
+        let cells = self.load.tray.cells();
+        self.rate.iter_mut().for_each(|r| *r = 0.0);
+        for &(c, seconds) in power {
+            let w = seconds / dt;
+            for &i in &self.filled {
+                self.rate[i] += w * maps.rates[c * cells + i];
+            }
+        }
+        let heating = !power.is_empty();
         self.conductances();
         // (A limit below 1 ms would mean a degenerate material; the floor keeps the loop finite.)
         let parts = if self.stable_for(dt) {
@@ -309,14 +323,13 @@ impl<'a> Model<'a> {
             if part > 0 {
                 self.conductances();
             }
-            self.substep(sub, config, maps);
+            self.substep(sub, heating);
         }
         sub
     }
 
-    fn substep(&mut self, dt: f64, config: Option<usize>, maps: &Maps) {
+    fn substep(&mut self, dt: f64, heating: bool) {
         let dx = self.load.tray.cell_size;
-        let cells = self.load.tray.cells();
         self.flux.iter_mut().for_each(|f| *f = 0.0);
         for (p, g) in self.pairs.iter().zip(&self.cond) {
             let q = g * (self.temp[p.b] - self.temp[p.a]);
@@ -332,10 +345,10 @@ impl<'a> Model<'a> {
             if self.edge_area[i] > 0.0 {
                 q += self.k[i] * self.edge_area[i] / dx * (self.edge_temp[i] - self.temp[i]);
             }
-            if let Some(c) = config {
+            if heating {
                 // The map's rate is the column's mean at the reference state: its power, split
                 // by depth, scaled by this node's absorption now.
-                q += maps.rates[c * cells + self.cell[i]]
+                q += self.rate[self.cell[i]]
                     * self.column_mass[i]
                     * self.share[i]
                     * mat.reference_cp
