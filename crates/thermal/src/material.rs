@@ -274,23 +274,35 @@ impl Material {
                     return (first.t + (hv - first.h) / cp_cold, first.k, first.absorb);
                 }
                 let top = rows.len() - 2;
-                let mut i = (*hint).min(top);
-                // Temperatures move a few rows per step: walk from the hint, search only on a long jump.
-                let mut walked = 0;
-                while walked < 8 && i < top && hv > rows[i + 1].h {
-                    i += 1;
-                    walked += 1;
+                // Temperatures move some rows per step: gallop from the hint (1, 2, 4 … rows) to
+                // bracket the row, then bisect the bracket.
+                let start = (*hint).min(top);
+                let below = |j: usize| rows[j].h <= hv;
+                let (mut lo, mut hi) = if below(start) {
+                    let (mut lo, mut gap) = (start, 1);
+                    while lo + gap <= top && below(lo + gap) {
+                        lo += gap;
+                        gap *= 2;
+                    }
+                    (lo, (lo + gap).min(top + 1))
+                } else {
+                    let (mut hi, mut gap) = (start, 1);
+                    while hi >= gap && !below(hi - gap) {
+                        hi -= gap;
+                        gap *= 2;
+                    }
+                    (hi.saturating_sub(gap), hi)
+                };
+                // Invariant: rows[lo].h <= hv (or lo = 0) and hv < rows[hi].h (or hi = top + 1).
+                while hi - lo > 1 {
+                    let mid = (lo + hi) / 2;
+                    if below(mid) {
+                        lo = mid;
+                    } else {
+                        hi = mid;
+                    }
                 }
-                while walked < 8 && i > 0 && hv < rows[i].h {
-                    i -= 1;
-                    walked += 1;
-                }
-                if !(rows[i].h <= hv && hv <= rows[i + 1].h) {
-                    i = rows
-                        .partition_point(|r| r.h <= hv)
-                        .saturating_sub(1)
-                        .min(top);
-                }
+                let i = lo.min(top);
                 *hint = i;
                 let (a, b) = (rows[i], rows[i + 1]);
                 let span = b.h - a.h;
