@@ -1,5 +1,8 @@
-//! Time-course benchmark: a 300 s schedule plus 2 minutes standing on a 48×32 tray at 1 s steps
-//! (96 configurations, four foods, one of them frozen). Run: `cargo bench -p traycast-thermal`.
+//! Time-course benchmark: a 300 s schedule plus 2 minutes standing on a 48×32 tray (96
+//! configurations, four foods 20 mm thick, one of them frozen), every cell in layers. The default
+//! layering (at most 4 mm, at most half the penetration depth) is measured against, in the same
+//! run, coarser and finer layering: the cost curve against the layer count.
+//! Run: `cargo bench -p traycast-thermal`.
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
@@ -64,10 +67,21 @@ fn bench(c: &mut Criterion) {
         configs,
         rates: &rates,
     };
-    let settings = Settings::default();
-    c.bench_function("time-course/48x32/300s+120s", |b| {
-        b.iter(|| black_box(simulate(&load, &maps, &schedule, &settings).unwrap()))
-    });
+    for (label, max_layer) in [("default, 4 mm", 0.004), ("10 mm", 0.010), ("2 mm", 0.002)] {
+        let settings = Settings {
+            max_layer,
+            ..Settings::default()
+        };
+        let layers: usize = simulate(&load, &maps, &Schedule::default(), &settings)
+            .unwrap()
+            .layers
+            .iter()
+            .sum();
+        let name = format!("time-course/48x32/300s+120s/layers {label} ({layers} nodes)");
+        c.bench_function(&name, |b| {
+            b.iter(|| black_box(simulate(&load, &maps, &schedule, &settings).unwrap()))
+        });
+    }
 }
 
 criterion_group!(time_course, bench);
