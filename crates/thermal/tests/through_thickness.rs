@@ -42,6 +42,15 @@ fn num(v: &serde_json::Value, key: &str) -> f64 {
     v[key].as_f64().unwrap_or_else(|| panic!("{key}"))
 }
 
+fn numbers(v: &serde_json::Value, key: &str) -> Vec<f64> {
+    v[key]
+        .as_array()
+        .unwrap_or_else(|| panic!("{key}"))
+        .iter()
+        .map(|x| x.as_f64().unwrap())
+        .collect()
+}
+
 /// SciPy reference: tests/fixtures/thermal/slab_reference.json, written by make_slab.py beside it
 /// (scipy.integrate.solve_ivp, BDF, on 400 finite volumes, averaged over our layers). With our
 /// default layers (4 mm at most, half the penetration depth at most) the coldest point and the
@@ -76,12 +85,7 @@ fn layered_column_matches_scipy_method_of_lines() {
         );
         let layers = case["layers"].as_u64().unwrap() as usize;
         assert_eq!(course.layers[0], layers, "{name}: layer count");
-        let want: Vec<f64> = case["after_standing_layers"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|v| v.as_f64().unwrap())
-            .collect();
+        let want = numbers(case, "after_standing_layers");
         let coldest = want.iter().copied().fold(f64::INFINITY, f64::min);
         assert!(
             (course.after_standing[0] - coldest).abs() < 0.5,
@@ -100,13 +104,9 @@ fn layered_column_matches_scipy_method_of_lines() {
             "{name}: mean {} vs SciPy {mean}",
             course.mean_after_standing[0]
         );
-        let heated: Vec<f64> = case["end_of_heating_layers"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|v| v.as_f64().unwrap())
-            .collect();
-        let coldest_hot = heated.iter().copied().fold(f64::INFINITY, f64::min);
+        let coldest_hot = numbers(case, "end_of_heating_layers")
+            .into_iter()
+            .fold(f64::INFINITY, f64::min);
         assert!(
             (course.end_of_heating[0] - coldest_hot).abs() < 0.5,
             "{name}: coldest at power-off {} vs SciPy {coldest_hot}",
