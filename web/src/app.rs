@@ -460,9 +460,18 @@ pub fn App() -> impl IntoView {
             .map_or("no target".to_string(), |z| p.zones[z].name.clone());
         eval.with(|e| match e {
             Some(Ok(e)) if i < e.linear.len() => format!(
-                "row {r}, col {c}: {food}, {zone}; linear {}, simulated {}, off band {}",
+                "row {r}, col {c}: {food}, {zone}; linear {}, simulated coldest point {}{}, off band {}",
                 u.fmt(e.linear[i]),
                 u.fmt(e.course.after_standing[i]),
+                if e.course.coldest_depth[i].is_finite() {
+                    format!(
+                        " ({:.0} mm deep; column mean {})",
+                        e.course.coldest_depth[i] * 1000.0,
+                        u.fmt(e.course.mean_after_standing[i])
+                    )
+                } else {
+                    String::new()
+                },
                 if e.error_simulated[i].is_finite() {
                     format!("{:+.1}", u.diff(e.error_simulated[i]))
                 } else {
@@ -647,7 +656,7 @@ pub fn App() -> impl IntoView {
                 <p class="hover" id="hover">{hover_text}</p>
                 <div class="maps">
                     <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=lin_ref></canvas><button class="small" on:click=png(lin_ref, "linear.png")>"PNG"</button></figure>
-                    <figure><figcaption>{move || format!("Simulated, after standing ({})", unit.get().symbol())}</figcaption><canvas id="map-simulated" node_ref=sim_ref></canvas><button class="small" on:click=png(sim_ref, "simulated.png")>"PNG"</button></figure>
+                    <figure><figcaption>{move || format!("Simulated coldest point of each cell, after standing ({})", unit.get().symbol())}</figcaption><canvas id="map-simulated" node_ref=sim_ref></canvas><button class="small" on:click=png(sim_ref, "simulated.png")>"PNG"</button></figure>
                     <figure><figcaption>"Off band (linear prediction): blue too cold, red too hot"</figcaption><canvas id="map-error" node_ref=err_ref></canvas><button class="small" on:click=png(err_ref, "error.png")>"PNG"</button></figure>
                 </div>
             </section>

@@ -122,7 +122,7 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
     let _ = writeln!(
         s,
         "\n{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  rule",
-        "food item (after standing)", "min °C", "mean", "max", "verdict", "margin K"
+        "food item (°C after standing)", "coldest", "mean", "hottest", "verdict", "margin K"
     );
     for (it, r) in plan.items.iter().zip(&e.items) {
         let v = &r.verdict;

@@ -78,6 +78,9 @@ pub fn demo(name: &str) -> Option<Plan> {
             paint(&mut p, 2, 2, 15..27, 1..9);
             paint(&mut p, 3, 3, 1..13, 10..17);
             paint(&mut p, 4, 4, 19..27, 11..17);
+            // An illustrative tray that lets microwaves through its base (glass, ceramic or
+            // plastic): half of each cell's power enters from below.
+            p.heating.from_below = 0.5;
             p
         }
         "frozen-portion" => {
