@@ -632,3 +632,22 @@ fn uncertainties_round_trip_through_both_formats() {
     let e = MapLibrary::from_csv(&broken.join("\n")).unwrap_err();
     assert!(e.to_string().contains("line 10"), "{e}");
 }
+
+/// Where the instant (linear) preview and the simulated coldest point disagree by more than 5 K,
+/// the evaluation says so and names the worst cell: a 50 mm chicken piece's centre is far colder
+/// than its column-mean preview (shared/reference/physics.md §8.1).
+#[test]
+fn the_preview_is_flagged_where_the_simulation_disagrees() {
+    let mut plan = demos::demo("lunch-tray").unwrap();
+    plan.items[0].thickness_mm = 50.0;
+    let e = evaluate::evaluate(&plan, None, Options::default()).unwrap();
+    let w = e
+        .warnings
+        .iter()
+        .find(|w| w.contains("'Chicken breast'") && w.contains("instant (linear) preview"))
+        .unwrap_or_else(|| panic!("{:?}", e.warnings));
+    assert!(
+        w.contains("row ") && w.contains("judge by the simulation"),
+        "{w}"
+    );
+}

@@ -63,9 +63,38 @@ pub fn time_course(
 
 /// Warnings about cells the time course drove outside the model: boiled dry, or past
 /// [`simulate::MODEL_LIMIT_C`] (dried food scorching). One line per item.
-pub(super) fn course_warnings(plan: &Plan, prep: &Prepared, course: &TimeCourse) -> Vec<String> {
+/// How far the instant (linear) preview may stray from the simulated coldest point before the
+/// evaluation says so, K. Our choice: about the width of a typical target band's margin.
+pub const PREVIEW_GAP_K: f64 = 5.0;
+
+pub(super) fn course_warnings(
+    plan: &Plan,
+    prep: &Prepared,
+    course: &TimeCourse,
+    linear: &[f64],
+) -> Vec<String> {
     let mut out = Vec::new();
+    let width = plan.tray.width;
     for (item, cells) in plan.items.iter().zip(prep.item_cells()) {
+        // Where the preview and the simulation disagree, and the worst cell.
+        let gaps: Vec<(usize, f64)> = cells
+            .iter()
+            .map(|&i| (i, linear[i] - course.after_standing[i]))
+            .filter(|&(_, g)| g.abs() > PREVIEW_GAP_K)
+            .collect();
+        if let Some(&(i, g)) = gaps.iter().max_by(|a, b| a.1.abs().total_cmp(&b.1.abs())) {
+            out.push(format!(
+                "'{}': the instant (linear) preview differs from the simulated coldest point by more than {PREVIEW_GAP_K:.0} K in {} of {} cells (worst at row {}, col {}: preview {:.1} °C, simulated {:.1} °C, {:+.1} K); the preview leaves out depth, conduction, thawing, boiling and the stand, so judge by the simulation",
+                item.name,
+                gaps.len(),
+                cells.len(),
+                i / width,
+                i % width,
+                linear[i],
+                course.after_standing[i],
+                g
+            ));
+        }
         let dry = cells.iter().filter(|&&i| course.boiled_dry[i]).count();
         if dry > 0 {
             out.push(format!(

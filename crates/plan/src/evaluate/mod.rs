@@ -170,7 +170,7 @@ impl Evaluator {
         let course = time_course(plan, maps, &self.mats, &schedule, &settings)?;
         let error_linear = prep.band_errors(&linear);
         let error_simulated = prep.band_errors(&course.after_standing);
-        let mut warnings = course_warnings(plan, prep, &course);
+        let mut warnings = course_warnings(plan, prep, &course, &linear);
         let cap_excess = prep
             .rows
             .iter()
