@@ -12,6 +12,11 @@
 //! P/(ρ·cp) with the food's thawed properties at 20 °C. Each configuration is scaled so that the
 //! standard load of the IEC 60705 power test — 1 kg of water in a 190 mm vessel at the cavity centre —
 //! absorbs the oven's rated power.
+//!
+//! **Power balance.** No configuration may make the load absorb more than the oven puts out: the
+//! total P_c = Σ rate·ρ·cp·volume over the tray is capped at η(M)·P_rated, the coupling
+//! efficiency η falling for small loads ([`coupling_efficiency`]); a configuration above the cap
+//! is scaled down to it.
 
 use crate::error::PlanError;
 use traycast_rng::SplitMix;
@@ -23,6 +28,17 @@ const F0: f64 = 2.45e9;
 const OMEGA_EPS0: f64 = 0.136_30;
 const Q_LOADED: f64 = 30.0;
 const MODES_PER_CONFIG: usize = 4;
+
+/// Load mass below which coupling falls off, kg: η(M) = 1 − e^(−M/M₀).
+const COUPLING_MASS: f64 = 0.2;
+
+/// Share of the oven's rated output a load of `mass` kg can absorb, 0 to 1. An assumption shaped
+/// on the oven literature's efficiency-versus-load curves, which fall steeply below about 300 g
+/// (shared/reference/physics.md §8.2; recalled from memory, no exact curve confirmed): 0.99 for
+/// the 1 kg IEC 60705 water load, 0.78 at 300 g, 0.39 at 100 g.
+pub fn coupling_efficiency(mass: f64) -> f64 {
+    -(-mass.max(0.0) / COUPLING_MASS).exp_m1()
+}
 
 /// Cavity size and tray height, m.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -396,6 +412,21 @@ pub fn generate(
         .collect();
     let tray_fields = used_fields(&cav, &all, &mix, &xs, &ys);
     let mut thawed = vec![0.0; configs * n];
+    // Watts per K/s of each cell's rate, and the cap on any configuration's total.
+    let watts_per_rate: Vec<f64> = cells
+        .iter()
+        .zip(&per_cell)
+        .map(|(c, pc)| match (c, pc) {
+            (Some(c), Some((_, rho_cp))) => rho_cp * cell_m * cell_m * c.thickness,
+            _ => 0.0,
+        })
+        .collect();
+    let mass: f64 = cells
+        .iter()
+        .flatten()
+        .map(|c| c.density * cell_m * cell_m * c.thickness)
+        .sum();
+    let cap = coupling_efficiency(mass) * rated_power_w;
     for (ci, m) in mix.iter().enumerate() {
         // The focus scale comes from the empty-ish reference so it does not depend on the layout.
         let ref_modal = modal_intensities(&ref_fields, m, &ref_weights, mask.len());
@@ -419,6 +450,12 @@ pub fn generate(
             if let Some((abs, rho_cp)) = per_cell[i] {
                 thawed[ci * n + i] = scale * abs * e2[i] / rho_cp;
             }
+        }
+        let rates = &mut thawed[ci * n..(ci + 1) * n];
+        let absorbed: f64 = rates.iter().zip(&watts_per_rate).map(|(r, w)| r * w).sum();
+        if absorbed > cap {
+            let down = cap / absorbed;
+            rates.iter_mut().for_each(|r| *r *= down);
         }
     }
     Ok(FieldMaps {

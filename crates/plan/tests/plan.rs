@@ -82,6 +82,35 @@ proptest! {
         prop_assert_eq!(&wire::from_json(&wire::to_json(&plan)).unwrap(), &plan);
     }
 
+    /// Energy is conserved in every configuration, for any layout: the load never absorbs more
+    /// than the oven's rated output times the coupling efficiency for its mass (#11 item 3; a
+    /// property of the field model, checked on random layouts, thicknesses and powers).
+    #[test]
+    fn no_configuration_absorbs_more_than_the_oven_puts_out(
+        plan in plan_strategy(),
+        thick in 1.0..80.0f64,
+        power in 200.0..3000.0f64,
+    ) {
+        let mut plan = plan;
+        plan.oven.power_w = power;
+        plan.items.iter_mut().for_each(|it| it.thickness_mm = thick);
+        plan.maps = MapSource::Synthetic { seed: 7 };
+        prop_assume!(plan.validate().is_ok());
+        let maps = evaluate::maps_for(&plan, None).unwrap();
+        let mats = evaluate::materials(&plan).unwrap();
+        let n = maps.cells;
+        let cell = plan.tray.cell_mm / 1000.0;
+        let kg = |i: usize| plan.item_at(i).map_or(0.0, |k| mats[k].density * cell * cell * thick / 1000.0);
+        let mass: f64 = (0..n).map(kg).sum();
+        let cap = traycast_plan::field::coupling_efficiency(mass) * power;
+        for c in 0..maps.configs {
+            let watts: f64 = (0..n)
+                .filter_map(|i| plan.item_at(i).map(|k| maps.thawed[c * n + i] * kg(i) * mats[k].reference_cp * 1000.0))
+                .sum();
+            prop_assert!(watts <= cap * (1.0 + 1e-9), "config {c}: {watts:.1} W > {cap:.1} W");
+        }
+    }
+
     #[test]
     fn random_text_is_refused_without_panic(s in ".{0,300}") {
         prop_assert!(wire::from_link(&s).is_err());
@@ -648,6 +677,45 @@ fn the_preview_is_flagged_where_the_simulation_disagrees() {
         .unwrap_or_else(|| panic!("{:?}", e.warnings));
     assert!(
         w.contains("row ") && w.contains("judge by the simulation"),
+        "{w}"
+    );
+}
+
+/// A library whose rates imply that the load absorbs more than the oven is rated for gets a
+/// warning naming the worst configuration (#11 item 3): here 72 g of chicken at about 0.15 K/s
+/// takes about 38 W, and ten times those rates exceed a 50 W rating.
+#[test]
+fn a_library_above_the_oven_rating_is_named() {
+    let mut lib = tiny_library();
+    let mut plan = Plan::blank(3, 2, 30.0);
+    plan.items = vec![FoodItem {
+        name: "Chicken".into(),
+        food: "chicken-breast".into(),
+        thickness_mm: 20.0,
+        start_c: 4.0,
+    }];
+    plan.food = vec![1, 1, 0, 1, 1, 0];
+    plan.oven.configs = 2;
+    plan.oven.power_w = 50.0;
+    plan.maps = MapSource::Library {
+        name: "kitchen".into(),
+        hash: None,
+    };
+    let within = evaluate::evaluate(&plan, Some(&lib), Options::default()).unwrap();
+    assert!(
+        !within.warnings.iter().any(|w| w.contains("rated")),
+        "{:?}",
+        within.warnings
+    );
+    lib.loads[0].rates.iter_mut().for_each(|r| *r *= 10.0);
+    let over = evaluate::evaluate(&plan, Some(&lib), Options::default()).unwrap();
+    let w = over
+        .warnings
+        .iter()
+        .find(|w| w.contains("rated 50 W"))
+        .unwrap_or_else(|| panic!("{:?}", over.warnings));
+    assert!(
+        w.contains("2 configuration(s)") && w.contains("worst: configuration 1"),
         "{w}"
     );
 }

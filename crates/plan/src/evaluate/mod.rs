@@ -184,6 +184,7 @@ impl Evaluator {
             warnings.push(format!("a hard cap is exceeded by {cap_excess:.1} K in the linear prediction: no schedule keeps it while heating the rest"));
         }
         warnings.extend(maps.warnings());
+        warnings.extend(over_rating(plan, maps, &self.mats));
         let bounds = maps
             .loaded_se
             .as_ref()
@@ -222,4 +223,45 @@ pub fn evaluate(
     options: Options,
 ) -> Result<Evaluation, PlanError> {
     Evaluator::with_library(library.cloned()).evaluate(plan, options)
+}
+
+/// The configurations whose thawed rates imply that the load absorbs more than the oven's rated
+/// output (a library recorded on another oven or load, or a calibration gone wrong): one warning
+/// naming the worst and how many. The field model never does this ([`crate::field`] caps it).
+fn over_rating(
+    plan: &Plan,
+    maps: &PlanMaps,
+    mats: &[traycast_thermal::material::Material],
+) -> Option<String> {
+    let n = maps.cells;
+    let cell = plan.tray.cell_mm / 1000.0;
+    let watts_per_rate: Vec<(usize, f64)> = (0..n)
+        .filter_map(|i| {
+            plan.item_at(i).map(|k| {
+                let m = &mats[k];
+                let kg = m.density * cell * cell * plan.items[k].thickness_mm / 1000.0;
+                (i, kg * m.reference_cp * 1000.0)
+            })
+        })
+        .collect();
+    let absorbed: Vec<f64> = (0..maps.configs)
+        .map(|c| {
+            watts_per_rate
+                .iter()
+                .map(|&(i, w)| maps.thawed[c * n + i] * w)
+                .sum()
+        })
+        .collect();
+    let over: Vec<usize> = (0..maps.configs)
+        .filter(|&c| absorbed[c] > plan.oven.power_w * 1.0001)
+        .collect();
+    let worst = *over
+        .iter()
+        .max_by(|&&a, &&b| absorbed[a].total_cmp(&absorbed[b]))?;
+    Some(format!(
+        "the maps imply that the load absorbs more than the oven's rated {:.0} W in {} configuration(s) (worst: configuration {worst}, {:.0} W): an oven cannot put out more than it is rated for; check the library's calibration and the plan's oven power",
+        plan.oven.power_w,
+        over.len(),
+        absorbed[worst]
+    ))
 }
