@@ -2,7 +2,7 @@
 //! kept in line with the specification and the classes by low-rank corrections, rebuilt when
 //! that is cheaper or rounding is due a refresh.
 
-use super::classes::{Change, Class, changed_cells, classify, contribution};
+use super::classes::{Change, Class, classify, contribution};
 use super::{DwellSolver, REBUILD_AFTER};
 use crate::kkt;
 use crate::problem::Spec;
@@ -20,8 +20,9 @@ impl DwellSolver {
     }
 
     /// Brings the cached classification, Gram matrix and b in line with `spec` by diffing against the last one.
-    /// `changed` lists the cells that may differ from the last specification (all when `None`).
-    pub(super) fn sync_spec(&mut self, spec: &Spec, changed: Option<&[usize]>) {
+    /// `changed` lists the cells that may differ from the last specification (unused on the first
+    /// call, which builds the cache).
+    pub(super) fn sync_spec(&mut self, spec: &Spec, changed: &[usize]) {
         let Some(old) = self.spec.take() else {
             self.rebuild(spec);
             self.spec = Some(spec.clone());
@@ -30,14 +31,6 @@ impl DwellSolver {
         };
         let n = self.rates.configs();
         let mut changes = Vec::new();
-        let all: Vec<usize>;
-        let changed = match changed {
-            Some(c) => c,
-            None => {
-                all = changed_cells(&old, spec).collect();
-                &all
-            }
-        };
         for &i in changed {
             let same = old.lo[i] == spec.lo[i]
                 && old.hi[i] == spec.hi[i]

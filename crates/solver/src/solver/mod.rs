@@ -232,18 +232,20 @@ impl DwellSolver {
     /// brings the cache in line with it.
     fn take_spec(&mut self, spec: &Spec) -> Result<(), InputError> {
         let (m, n) = (self.rates.cells(), self.rates.configs());
-        let changed: Option<Vec<usize>> = match &self.spec {
+        let changed: Vec<usize> = match &self.spec {
             Some(old) if spec.lo.len() == m && spec.hi.len() == m && spec.weights.len() == m => {
                 let changed: Vec<usize> = changed_cells(old, spec).collect();
                 spec.validate_changed(m, n, changed.iter().copied())?;
-                Some(changed)
+                changed
             }
             _ => {
+                // The first specification (the cache is built from it) or one of the wrong size
+                // (refused here).
                 spec.validate(m, n)?;
-                None
+                Vec::new()
             }
         };
-        self.sync_spec(spec, changed.as_deref());
+        self.sync_spec(spec, &changed);
         Ok(())
     }
 
