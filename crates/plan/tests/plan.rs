@@ -166,6 +166,24 @@ fn hostile_links_get_a_clear_message() {
     }
 }
 
+/// Chicken on the four food cells of [`tiny_library`]'s layout, pointed at that library.
+fn chicken_on_kitchen() -> Plan {
+    let mut plan = Plan::blank(3, 2, 30.0);
+    plan.items = vec![FoodItem {
+        name: "Chicken".into(),
+        food: "chicken-breast".into(),
+        thickness_mm: 20.0,
+        start_c: 4.0,
+    }];
+    plan.food = vec![1, 1, 0, 1, 1, 0];
+    plan.oven.configs = 2;
+    plan.maps = MapSource::Library {
+        name: "kitchen".into(),
+        hash: None,
+    };
+    plan
+}
+
 fn tiny_library() -> MapLibrary {
     let n = 6;
     let layout = vec![
@@ -375,14 +393,7 @@ fn heating_from_below_travels_and_is_checked() {
 #[test]
 fn a_plan_is_only_solved_on_the_library_it_names() {
     let lib = tiny_library();
-    let mut plan = Plan::blank(3, 2, 30.0);
-    plan.items = vec![FoodItem {
-        name: "Chicken".into(),
-        food: "chicken-breast".into(),
-        thickness_mm: 20.0,
-        start_c: 4.0,
-    }];
-    plan.food = vec![1, 1, 0, 1, 1, 0];
+    let mut plan = chicken_on_kitchen();
     plan.zones = vec![Zone {
         name: "hot".into(),
         min_c: 60.0,
@@ -391,11 +402,6 @@ fn a_plan_is_only_solved_on_the_library_it_names() {
         cap_c: None,
     }];
     plan.zone = vec![1, 1, 0, 1, 1, 0];
-    plan.oven.configs = 2;
-    plan.maps = MapSource::Library {
-        name: "kitchen".into(),
-        hash: None,
-    };
     let on_kitchen = evaluate::evaluate(&plan, Some(&lib), Options::default()).unwrap();
     let mut other = lib.clone();
     other.name = "bench oven 2".into();
@@ -687,20 +693,8 @@ fn the_preview_is_flagged_where_the_simulation_disagrees() {
 #[test]
 fn a_library_above_the_oven_rating_is_named() {
     let mut lib = tiny_library();
-    let mut plan = Plan::blank(3, 2, 30.0);
-    plan.items = vec![FoodItem {
-        name: "Chicken".into(),
-        food: "chicken-breast".into(),
-        thickness_mm: 20.0,
-        start_c: 4.0,
-    }];
-    plan.food = vec![1, 1, 0, 1, 1, 0];
-    plan.oven.configs = 2;
+    let mut plan = chicken_on_kitchen();
     plan.oven.power_w = 50.0;
-    plan.maps = MapSource::Library {
-        name: "kitchen".into(),
-        hash: None,
-    };
     let within = evaluate::evaluate(&plan, Some(&lib), Options::default()).unwrap();
     assert!(
         !within.warnings.iter().any(|w| w.contains("rated")),
