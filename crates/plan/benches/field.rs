@@ -4,19 +4,26 @@
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
 use traycast_plan::field::{Absorber, generate};
-use traycast_thermal::dielectric::LossClass;
+use traycast_thermal::dielectric::Permittivity;
 
 fn bench(c: &mut Criterion) {
     let (w, h) = (48, 32);
     let cells: Vec<Option<Absorber>> = (0..w * h)
         .map(|i| {
-            let class = if i % w < w / 2 {
-                LossClass::Meat
+            // Thawed meat and a watery vegetable, near the composition model's 20 °C values.
+            let permittivity = if i % w < w / 2 {
+                Permittivity {
+                    constant: 49.0,
+                    loss: 15.5,
+                }
             } else {
-                LossClass::Watery
+                Permittivity {
+                    constant: 64.0,
+                    loss: 18.0,
+                }
             };
             Some(Absorber {
-                class,
+                permittivity,
                 thickness: 0.02,
                 density: 1050.0,
                 cp: 3.6,

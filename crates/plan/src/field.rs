@@ -20,7 +20,7 @@
 
 use crate::error::PlanError;
 use traycast_rng::SplitMix;
-use traycast_thermal::dielectric::LossClass;
+use traycast_thermal::dielectric::Permittivity;
 
 const C0: f64 = 299_792_458.0;
 const F0: f64 = 2.45e9;
@@ -174,8 +174,8 @@ fn grid_field(cav: &Cavity, mode: &Mode, xs: &[f64], ys: &[f64]) -> Vec<[f64; 3]
 /// What one cell holds, for the field model.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Absorber {
-    /// Absorption class.
-    pub class: LossClass,
+    /// Permittivity at the maps' reference state (`Material::reference` of the thermal crate).
+    pub permittivity: Permittivity,
     /// Thickness, m.
     pub thickness: f64,
     /// Thawed density, kg/m³.
@@ -381,26 +381,25 @@ pub fn generate(
     let phi: f64 = cells
         .iter()
         .flatten()
-        .map(|c| (c.class.factors().constant_thawed - 1.0) * cell_m * cell_m * c.thickness)
+        .map(|c| (c.permittivity.constant - 1.0) * cell_m * cell_m * c.thickness)
         .sum::<f64>()
         / v_cav;
     let weights = detuning(&all, phi);
     // Reference water load, for the per-configuration power scale (IEC 60705 water-load method).
-    let water = traycast_thermal::catalogue::find("water").expect("catalogue has water");
-    let wf = water.loss.factors();
+    let wf = traycast_thermal::dielectric::water(traycast_thermal::material::REFERENCE_C);
     let (rxs, rys, mask, dv, depth) = reference_load(&cav);
     let inside = mask.iter().filter(|&&m| m).count() as f64;
-    let ref_weights = detuning(&all, (wf.constant_thawed - 1.0) * dv * inside / v_cav);
-    let ref_abs = absorption(wf.constant_thawed, wf.thawed, depth);
+    let ref_weights = detuning(&all, (wf.constant - 1.0) * dv * inside / v_cav);
+    let ref_abs = absorption(wf.constant, wf.loss, depth);
     let ref_fields = used_fields(&cav, &all, &mix, &rxs, &rys);
     // Per-cell absorption factor and heat capacity per volume (thawed).
     let per_cell: Vec<Option<(f64, f64)>> = cells
         .iter()
         .map(|c| {
             c.map(|c| {
-                let f = c.class.factors();
+                let f = c.permittivity;
                 (
-                    absorption(f.constant_thawed, f.thawed, c.thickness),
+                    absorption(f.constant, f.loss, c.thickness),
                     c.density * c.cp * 1000.0,
                 )
             })

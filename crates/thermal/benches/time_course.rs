@@ -1,6 +1,6 @@
 //! Time-course benchmark: a 300 s schedule plus 2 minutes standing on a 48×32 tray (96
 //! configurations, four foods 20 mm thick, one of them frozen), every cell in layers. The default
-//! layering (at most 4 mm, at most half the penetration depth) is measured against, in the same
+//! layering (at most 4 mm, at most the smallest penetration depth) is measured against, in the same
 //! run, coarser and finer layering: the cost curve against the layer count.
 //! Run: `cargo bench -p traycast-thermal`.
 
@@ -19,7 +19,7 @@ fn bench(c: &mut Criterion) {
         .iter()
         .map(|id| {
             let f = catalogue::find(id).unwrap();
-            Material::food(&f.composition(), f.loss).unwrap()
+            Material::food(&f.composition()).unwrap()
         })
         .collect();
     let cells: Vec<Option<CellFill>> = (0..n)

@@ -1,5 +1,5 @@
-//! A material ready for simulation: enthalpy ↔ temperature, conductivity and absorption as functions
-//! of the state, tabulated once from the composition.
+//! A material ready for simulation: enthalpy ↔ temperature, conductivity and dielectric behaviour as
+//! functions of the state, tabulated once from the composition.
 //!
 //! Enthalpy (kJ/kg, zero at −40 °C) is built from the components so that it is continuous and
 //! monotonic across the freezing range: H(T) = Σ solids xᵢ·Sᵢ(T) + x_ice(T)·S_ice(T) +
@@ -7,14 +7,24 @@
 //! and L(T) = L₀ − ∫_T^0 (cp_w − cp_ice) the latent heat at T (Kirchhoff's relation). Its slope is
 //! positive everywhere because melting ice (dx_ice/dT < 0) absorbs L(T) > 0. Pure water
 //! (no solids) melts isothermally at its freezing point: a plateau of L₀·x_w.
+//!
+//! Each row also carries what the food does to microwave power at that state, from the
+//! composition-based permittivity ([`dielectric::food`]): the attenuation 1/D_p and the share of
+//! incident power that enters through a face ([`Permittivity::transmission`]).
 
 use crate::choi_okos::Component;
 use crate::composition::{BOILING_POINT, Composition, LATENT_FUSION};
-use crate::dielectric::LossClass;
+use crate::dielectric::{self, DRY_RESIDUE_LOSS, Permittivity};
 use crate::error::{ThermalError, in_range};
 
 const T_MIN: f64 = -40.0;
+/// Temperature of a heating map's reference state, °C: thawed, at room temperature (the state the
+/// reference specific heat is taken at too).
+pub const REFERENCE_C: f64 = 20.0;
+/// Smallest attenuation used, 1/m: keeps a nearly lossless material's deposition finite (even).
+const MIN_ATTENUATION: f64 = 1e-9;
 const T_STEP: f64 = 0.1;
+const COARSE_STEP: f64 = 0.5;
 
 /// Thermal behaviour of one food (or a test material with constant properties).
 #[derive(Clone, Debug, PartialEq)]
@@ -29,21 +39,28 @@ pub struct Material {
     /// Smallest dH/dT over the table (kJ/(kg·K)): sets the explicit time-step limit.
     pub min_heat_capacity: f64,
     /// Absorption of the dry residue left when all the water has boiled off, relative to the
-    /// thawed food ([`LossClass::dry_ratio`]); 0 for pure water, which leaves nothing.
+    /// thawed food: the solids' loss factor ([`DRY_RESIDUE_LOSS`], never above the food's own)
+    /// over the food's, times the share of the material that remains; 0 for pure water.
     pub dry_absorption: f64,
-    /// Power penetration depth of the thawed food at 2.45 GHz, m: how the column's power is
-    /// spread through the thickness ([`crate::dielectric::penetration_depth`]). Infinite (power
-    /// spread evenly) for [`Material::constant`] unless set with
+    /// Attenuation of the dry residue, 1/m: [`Material::dry_absorption`] over the reference
+    /// penetration depth.
+    dry_attenuation: f64,
+    /// Permittivity at the reference state ([`REFERENCE_C`], thawed).
+    pub reference: Permittivity,
+    /// Power penetration depth at the reference state, m ([`Permittivity::penetration_depth`]).
+    /// Infinite (power spread evenly) for [`Material::constant`] unless set with
     /// [`Material::with_penetration_depth`].
     pub penetration_depth: f64,
+    /// Smallest penetration depth over every state, m: what the layers must resolve.
+    pub min_penetration_depth: f64,
     /// Enthalpy at the boiling point (kJ/kg); +∞ for materials that do not boil.
     boil_h: f64,
 }
 
 #[derive(Clone, Debug, PartialEq)]
 enum Curve {
-    /// Constant properties: H = cp·(T − T_MIN).
-    Linear { cp: f64, k: f64 },
+    /// Constant properties: H = cp·(T − T_MIN); attenuation `mu` (1/m), full transmission.
+    Linear { cp: f64, k: f64, mu: f64 },
     /// Tabulated rows, T and H non-decreasing.
     Table {
         rows: Vec<Row>,
@@ -59,16 +76,38 @@ struct Row {
     h: f64,
     t: f64,
     k: f64,
-    absorb: f64,
+    /// Attenuation 1/D_p, 1/m.
+    mu: f64,
+    /// Share of incident power entering through a face.
+    transmit: f64,
+}
+
+/// What the food does to microwave power at one state.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Dielectric {
+    /// Attenuation 1/D_p, 1/m.
+    pub attenuation: f64,
+    /// Share of incident power entering through a face ([`Permittivity::transmission`]).
+    pub transmission: f64,
+}
+
+/// A node's state read from its enthalpy ([`Material::state`]).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct State {
+    /// Temperature, °C.
+    pub t: f64,
+    /// Conductivity, W/(m·K).
+    pub k: f64,
+    /// Dielectric behaviour.
+    pub dielectric: Dielectric,
 }
 
 impl Material {
-    /// A food from its composition and loss class.
-    pub fn food(comp: &Composition, loss: LossClass) -> Result<Self, ThermalError> {
+    /// A food from its composition.
+    pub fn food(comp: &Composition) -> Result<Self, ThermalError> {
         comp.validate()?;
         let solids: f64 = comp.solids();
         let sharp = solids < 1e-9;
-        let freezable = comp.water - comp.bound_water();
         let solid_parts = [
             (Component::Protein, comp.protein),
             (Component::Fat, comp.fat),
@@ -100,28 +139,31 @@ impl Material {
                 + (comp.water - ice) * (latent_offset + Component::Water.sensible_enthalpy(t))
         };
         let h0 = raw_h(T_MIN, ice_at(T_MIN));
-        let row = |t: f64, ice: f64| -> (f64, f64, f64, f64) {
+        let row = |t: f64, ice: f64| -> Row {
             let mut fr = comp.fractions(t);
             fr[0].1 = comp.water - ice;
             fr[1].1 = ice;
             let p = crate::composition::mixture(&fr, t);
-            let unfrozen = if freezable > 0.0 {
-                1.0 - ice / freezable
-            } else {
-                1.0
-            };
-            (
+            let e = dielectric::food(comp, t, ice);
+            Row {
+                h: raw_h(t, ice) - h0,
                 t,
-                raw_h(t, ice) - h0,
-                p.conductivity,
-                loss.absorption_ratio(unfrozen),
-            )
+                k: p.conductivity,
+                mu: (1.0 / e.penetration_depth()).max(MIN_ATTENUATION),
+                transmit: e.transmission(),
+            }
         };
-        // A 0.1 K grid, ten times finer in the kelvin below the freezing point where the ice
-        // fraction changes fastest.
-        let mut grid: Vec<f64> = (0..=((BOILING_POINT - T_MIN) / T_STEP).round() as usize)
-            .map(|s| T_MIN + s as f64 * T_STEP)
+        // A 0.5 K grid where the properties are smooth (deep frozen, and thawed), 0.1 K in the
+        // ten kelvin below the freezing point where the ice fraction bends, and 0.01 K in the
+        // last kelvin where it changes fastest. Fewer rows keep the per-step lookup short.
+        let mut grid: Vec<f64> = (0..=((BOILING_POINT - T_MIN) / COARSE_STEP).round() as usize)
+            .map(|s| T_MIN + s as f64 * COARSE_STEP)
             .collect();
+        grid.extend(
+            (0..=(10.0 / T_STEP).round() as usize)
+                .map(|s| comp.freezing_point - 10.0 + s as f64 * T_STEP)
+                .filter(|&v| v > T_MIN),
+        );
         if !sharp {
             grid.extend((1..100).map(|s| comp.freezing_point - 1.0 + s as f64 * 0.01));
         }
@@ -129,13 +171,8 @@ impl Material {
         grid.retain(|&v| (v - comp.freezing_point).abs() > 1e-6);
         grid.sort_by(f64::total_cmp);
         grid.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
-        let (mut t, mut h, mut k, mut absorb) = (vec![], vec![], vec![], vec![]);
-        let mut push = |r: (f64, f64, f64, f64)| {
-            t.push(r.0);
-            h.push(r.1);
-            k.push(r.2);
-            absorb.push(r.3);
-        };
+        let mut rows: Vec<Row> = Vec::with_capacity(grid.len() + 2);
+        let mut push = |r: Row| rows.push(r);
         let mut prev = f64::NEG_INFINITY;
         for &tt in &grid {
             let crossing = prev < comp.freezing_point && tt >= comp.freezing_point;
@@ -149,13 +186,13 @@ impl Material {
             }
             push(row(tt, ice_at(tt)));
         }
-        let slopes = h
+        let min_heat_capacity = rows
             .windows(2)
-            .zip(t.windows(2))
-            .filter(|(_, tw)| tw[1] - tw[0] > 1e-6);
-        let min_heat_capacity = slopes
-            .map(|(hw, tw)| (hw[1] - hw[0]) / (tw[1] - tw[0]))
+            .filter(|w| w[1].t - w[0].t > 1e-6)
+            .map(|w| (w[1].h - w[0].h) / (w[1].t - w[0].t))
             .fold(f64::INFINITY, f64::min);
+        let max_mu = rows.iter().map(|r| r.mu).fold(MIN_ATTENUATION, f64::max);
+        let reference = dielectric::food(comp, REFERENCE_C, 0.0);
         let thawed = comp.properties(20.0);
         let hot: f64 = solid_parts
             .iter()
@@ -164,14 +201,7 @@ impl Material {
             / solids.max(1e-9);
         let mut m = Material {
             curve: Curve::Table {
-                rows: (0..t.len())
-                    .map(|i| Row {
-                        h: h[i],
-                        t: t[i],
-                        k: k[i],
-                        absorb: absorb[i],
-                    })
-                    .collect(),
+                rows,
                 cp_hot: if sharp {
                     Component::Water.specific_heat(BOILING_POINT)
                 } else {
@@ -183,11 +213,16 @@ impl Material {
             reference_cp: thawed.specific_heat,
             water: comp.water,
             min_heat_capacity,
-            dry_absorption: loss.dry_ratio(solids),
-            penetration_depth: loss.penetration_depth(),
+            dry_absorption: DRY_RESIDUE_LOSS.min(reference.loss) / reference.loss.max(1e-12)
+                * solids,
+            dry_attenuation: 0.0,
+            reference,
+            penetration_depth: reference.penetration_depth(),
+            min_penetration_depth: 1.0 / max_mu,
             boil_h: f64::INFINITY,
         };
         m.boil_h = m.enthalpy(BOILING_POINT);
+        m.dry_attenuation = m.dry_absorption / m.penetration_depth;
         Ok(m)
     }
 
@@ -207,19 +242,27 @@ impl Material {
             curve: Curve::Linear {
                 cp,
                 k: conductivity,
+                mu: MIN_ATTENUATION,
             },
             density,
             reference_cp: cp,
             water: 0.0,
             min_heat_capacity: cp,
             dry_absorption: 1.0,
+            dry_attenuation: 0.0,
+            reference: Permittivity {
+                constant: 1.0,
+                loss: 0.0,
+            },
             penetration_depth: f64::INFINITY,
+            min_penetration_depth: f64::INFINITY,
             boil_h: f64::INFINITY,
         })
     }
 
-    /// The same material with power penetration depth `depth` (m, > 0; infinite spreads the power
-    /// evenly through the thickness).
+    /// The same material with a fixed dielectric behaviour: power penetration depth `depth` (m,
+    /// positive; infinite spreads the power evenly through the thickness) and full transmission at
+    /// every state. For checks that isolate conduction, calorimetry or boiling from the dielectric model.
     pub fn with_penetration_depth(mut self, depth: f64) -> Result<Self, ThermalError> {
         if depth.is_nan() || depth <= 0.0 {
             return Err(ThermalError::OutOfRange {
@@ -228,7 +271,17 @@ impl Material {
                 allowed: "greater than 0",
             });
         }
+        let mu = (1.0 / depth).max(MIN_ATTENUATION);
+        match &mut self.curve {
+            Curve::Linear { mu: m, .. } => *m = mu,
+            Curve::Table { rows, .. } => rows.iter_mut().for_each(|r| {
+                r.mu = mu;
+                r.transmit = 1.0;
+            }),
+        }
         self.penetration_depth = depth;
+        self.min_penetration_depth = depth;
+        self.dry_attenuation = self.dry_absorption * mu;
         Ok(self)
     }
 
@@ -256,11 +309,26 @@ impl Material {
         }
     }
 
-    /// Temperature, conductivity and absorption ratio at enthalpy `hv`; `hint` is the row index from
-    /// the previous call for the same cell (updated).
-    pub fn state(&self, hv: f64, hint: &mut usize) -> (f64, f64, f64) {
+    /// The state at enthalpy `hv`; `hint` is the row index from the previous call for the same
+    /// node (updated).
+    pub fn state(&self, hv: f64, hint: &mut usize) -> State {
+        let of = |t: f64, r: &Row| State {
+            t,
+            k: r.k,
+            dielectric: Dielectric {
+                attenuation: r.mu,
+                transmission: r.transmit,
+            },
+        };
         match &self.curve {
-            Curve::Linear { cp, k } => (T_MIN + hv / cp, *k, 1.0),
+            Curve::Linear { cp, k, mu } => State {
+                t: T_MIN + hv / cp,
+                k: *k,
+                dielectric: Dielectric {
+                    attenuation: *mu,
+                    transmission: 1.0,
+                },
+            },
             Curve::Table {
                 rows,
                 cp_hot,
@@ -268,10 +336,10 @@ impl Material {
             } => {
                 let (first, last) = (rows[0], rows[rows.len() - 1]);
                 if hv >= last.h {
-                    return (last.t + (hv - last.h) / cp_hot, last.k, last.absorb);
+                    return of(last.t + (hv - last.h) / cp_hot, &last);
                 }
                 if hv <= first.h {
-                    return (first.t + (hv - first.h) / cp_cold, first.k, first.absorb);
+                    return of(first.t + (hv - first.h) / cp_cold, &first);
                 }
                 let top = rows.len() - 2;
                 // Temperatures move some rows per step: gallop from the hint (1, 2, 4 … rows) to
@@ -311,30 +379,50 @@ impl Material {
                 } else {
                     0.0
                 };
-                (
-                    a.t + f * (b.t - a.t),
-                    a.k + f * (b.k - a.k),
-                    a.absorb + f * (b.absorb - a.absorb),
-                )
+                State {
+                    t: a.t + f * (b.t - a.t),
+                    k: a.k + f * (b.k - a.k),
+                    dielectric: Dielectric {
+                        attenuation: a.mu + f * (b.mu - a.mu),
+                        transmission: a.transmit + f * (b.transmit - a.transmit),
+                    },
+                }
             }
         }
     }
 
     /// Temperature at enthalpy `h`.
     pub fn temperature(&self, h: f64) -> f64 {
-        self.state(h, &mut 0).0
+        self.state(h, &mut 0).t
     }
 
-    /// Absorption factor for the moisture a cell has left: 1 with all its water, falling linearly
-    /// (in the water that remains) to [`Material::dry_absorption`] when it has all boiled off. An
-    /// assumption of this model: the loss is carried by the water, the dry matter adds its own small
-    /// share. Materials without water are unaffected.
-    pub fn moisture_factor(&self, water_left_fraction: f64) -> f64 {
+    /// Share of the power incident on one face that a uniform column of `thickness` (m) at `t` °C
+    /// absorbs: transmission × (1 − e^(−thickness/D_p)) (Lambert's law, the same picture the time
+    /// course deposits power by). The ratio of this at two states converts a heating map between
+    /// them, for instance from a frozen recording to the reference state: a frozen food lets more
+    /// power in (it reflects less) but holds little of it, so the conversion is far from the bare
+    /// loss-factor ratio.
+    pub fn column_absorption(&self, t: f64, thickness: f64) -> f64 {
+        let d = self.state(self.enthalpy(t), &mut 0).dielectric;
+        d.transmission * -(-thickness * d.attenuation).exp_m1()
+    }
+
+    /// [`Material::column_absorption`] at `t` over that at the reference state.
+    pub fn absorption_ratio(&self, t: f64, thickness: f64) -> f64 {
+        self.column_absorption(t, thickness) / self.column_absorption(REFERENCE_C, thickness)
+    }
+
+    /// Attenuation (1/m) of a node whose state gives `attenuation` and which has
+    /// `water_left_fraction` of its water: falling linearly in the water that remains to the dry
+    /// residue's ([`Material::dry_absorption`] × the reference attenuation) once it has all boiled
+    /// off. An assumption of this model: the loss is carried by the water with its salts, the dry
+    /// matter adds its own small share. Materials without water are unaffected.
+    pub fn attenuation_with_moisture(&self, attenuation: f64, water_left_fraction: f64) -> f64 {
         if self.water <= 0.0 {
-            return 1.0;
+            return attenuation;
         }
         let w = water_left_fraction.clamp(0.0, 1.0);
-        self.dry_absorption + (1.0 - self.dry_absorption) * w
+        self.dry_attenuation + (attenuation - self.dry_attenuation) * w
     }
 
     /// Enthalpy at the boiling point: above it, energy evaporates water.

@@ -209,7 +209,7 @@ fn ashrae_enthalpy_formulas_reproduce_their_check_values() {
 #[test]
 fn enthalpy_model_is_continuous_monotonic_and_close_to_ashrae() {
     let carrots = Composition::from_percent(87.79, 1.03, 0.19, 7.14, 3.00, 0.87, -1.4).unwrap();
-    let mat = Material::food(&carrots, traycast_thermal::dielectric::LossClass::Watery).unwrap();
+    let mat = Material::food(&carrots).unwrap();
     for t in [-20.0, -10.0, -5.0] {
         let (ours, theirs) = (mat.enthalpy(t), schwartzberg(0.8779, 0.0103, -1.4, t));
         assert!(
@@ -245,7 +245,7 @@ fn catalogue_compositions_are_valid_and_sourced() {
     for f in &CATALOGUE {
         let c = f.composition();
         assert!(!f.source.is_empty());
-        Material::food(&c, f.loss).unwrap();
+        Material::food(&c).unwrap();
     }
 }
 

@@ -53,7 +53,7 @@ fn numbers(v: &serde_json::Value, key: &str) -> Vec<f64> {
 
 /// SciPy reference: tests/fixtures/thermal/slab_reference.json, written by make_slab.py beside it
 /// (scipy.integrate.solve_ivp, BDF, on 400 finite volumes, averaged over our layers). With our
-/// default layers (4 mm at most, half the penetration depth at most) the coldest point and the
+/// default layers (4 mm at most, the smallest penetration depth at most) the coldest point and the
 /// mean agree within 0.5 K after heating and after standing. The surface layer is allowed 1.5 K:
 /// one 4 mm node stands for the steepest part of the deposition profile (measured 1.2 K); the
 /// safety judgement never uses it.
@@ -138,12 +138,14 @@ fn penetration_depths_match_published_values() {
 
 /// The case behind the depth model (physics.md §8.1, an independent 1-D estimate from memory):
 /// a 50 mm chicken piece at 0.20 K/s column mean for 360 s from both faces, standing 120 s,
-/// ends with its centre near 42–48 °C while its mean is near 75 °C. The coldest point must show
-/// that, and the verdict must fail, however warm the column average is.
+/// ends with its centre near 42–48 °C while its mean is near 75 °C. Here the loss factor also
+/// rises with temperature (the ionic term), so the surface takes more and boils off some water,
+/// and the centre ends colder still. The coldest point must show that, and the verdict must
+/// fail, however warm the column average is.
 #[test]
 fn a_thick_chicken_breast_is_judged_at_its_cold_centre() {
     let food = catalogue::find("chicken-breast").unwrap();
-    let mat = Material::food(&food.composition(), food.loss).unwrap();
+    let mat = Material::food(&food.composition()).unwrap();
     let settings = Settings {
         bottom_entry: 0.5,
         ..Settings::default()
@@ -151,7 +153,10 @@ fn a_thick_chicken_breast_is_judged_at_its_cold_centre() {
     let course = column(&mat, 0.05, 5.0, 0.20, 360.0, settings);
     let (coldest, mean) = (course.after_standing[0], course.mean_after_standing[0]);
     assert!(coldest < 55.0, "coldest point {coldest}");
-    assert!(mean > 65.0, "column mean {mean}");
+    assert!(
+        mean > coldest + 20.0,
+        "column mean {mean}, coldest {coldest}"
+    );
     let depth = course.coldest_depth[0];
     assert!((0.015..0.035).contains(&depth), "coldest at {depth} m");
     assert!(!safety::verdict(food.safety, &[coldest], course.standing_seconds).safe);
@@ -161,7 +166,7 @@ fn a_thick_chicken_breast_is_judged_at_its_cold_centre() {
 #[test]
 fn the_coldest_point_converges_in_the_layer_count() {
     let food = catalogue::find("chicken-breast").unwrap();
-    let mat = Material::food(&food.composition(), food.loss).unwrap();
+    let mat = Material::food(&food.composition()).unwrap();
     let run = |max_layer: f64| {
         let s = Settings {
             max_layer,
@@ -171,7 +176,8 @@ fn the_coldest_point_converges_in_the_layer_count() {
         column(&mat, 0.05, 5.0, 0.20, 360.0, s)
     };
     let (coarse, fine) = (run(0.004), run(0.001));
-    assert!(fine.layers[0] > 2 * coarse.layers[0]);
+    // The default is limited by the smallest penetration depth (hot chicken, about 5 mm).
+    assert!(fine.layers[0] >= 2 * coarse.layers[0]);
     let gap = (coarse.after_standing[0] - fine.after_standing[0]).abs();
     assert!(
         gap < 0.5,
@@ -206,7 +212,7 @@ fn layers_conserve_the_column_energy() {
 fn the_coldest_point_converges_in_the_time_step() {
     for (name, start) in [("chicken-breast", 5.0), ("chicken-breast", -18.0)] {
         let food = catalogue::find(name).unwrap();
-        let mat = Material::food(&food.composition(), food.loss).unwrap();
+        let mat = Material::food(&food.composition()).unwrap();
         let run = |step: f64| {
             let s = Settings {
                 step,

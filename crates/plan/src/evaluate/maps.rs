@@ -52,21 +52,23 @@ pub fn materials(plan: &Plan) -> Result<Vec<Material>, PlanError> {
             let f = plan.catalogue_food(k).ok_or_else(|| {
                 PlanError::new(format!("items[{k}].food"), "not a catalogue food")
             })?;
-            Material::food(&f.composition(), f.loss).map_err(PlanError::from)
+            Material::food(&f.composition()).map_err(PlanError::from)
         })
         .collect()
 }
 
-/// Absorption ratio of each food cell at its start temperature (1 thawed, ≪ 1 frozen).
+/// What each food cell's column absorbs at its start temperature relative to the reference state
+/// (thawed, 20 °C): converts maps between the two ([`Material::absorption_ratio`]; a frozen column
+/// lets more power in but keeps less of it).
 fn start_absorption(plan: &Plan, mats: &[Material]) -> Vec<f64> {
+    let ratios: Vec<f64> = plan
+        .items
+        .iter()
+        .zip(mats)
+        .map(|(it, m)| m.absorption_ratio(it.start_c, it.thickness_mm / 1000.0))
+        .collect();
     (0..plan.tray.cells())
-        .map(|i| match plan.item_at(i) {
-            Some(k) => {
-                let m = &mats[k];
-                m.state(m.enthalpy(plan.items[k].start_c), &mut 0).2
-            }
-            None => 1.0,
-        })
+        .map(|i| plan.item_at(i).map_or(1.0, |k| ratios[k]))
         .collect()
 }
 
@@ -90,7 +92,7 @@ pub(super) fn maps_with(
             let cells: Vec<Option<Absorber>> = (0..n)
                 .map(|i| {
                     plan.item_at(i).map(|k| Absorber {
-                        class: plan.catalogue_food(k).expect("validated").loss,
+                        permittivity: mats[k].reference,
                         thickness: plan.items[k].thickness_mm / 1000.0,
                         density: mats[k].density,
                         cp: mats[k].reference_cp,

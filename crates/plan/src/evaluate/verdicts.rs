@@ -47,13 +47,13 @@ pub fn cell_bounds(
         let h = m.enthalpy(after);
         let absorbed = h - m.enthalpy(plan.items[k].start_c) + evaporated;
         let de = Z95 * rel * absorbed.abs();
-        lower[i] = m.state((h + evaporated - de).min(h), &mut 0).0.min(after);
+        lower[i] = m.state((h + evaporated - de).min(h), &mut 0).t.min(after);
         let hot = course.hottest_after_standing[i];
         let h_hot = m.enthalpy(hot);
         let de_hot = Z95 * rel * (h_hot - m.enthalpy(plan.items[k].start_c)).abs();
         upper[i] = m
             .state(h_hot + de_hot, &mut 0)
-            .0
+            .t
             .clamp(hot, 100.0f64.max(hot));
     }
     CellBounds { lower, upper }

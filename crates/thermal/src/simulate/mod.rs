@@ -3,20 +3,25 @@
 //! Model (a cell holds one food item of a given thickness, cut into layers through its thickness;
 //! one node per layer, see [`column`]):
 //! - **Power.** A heating map gives, per configuration, the rate (K/s) at which the cell's food,
-//!   thawed at 20 °C, would warm on average over its column. The column's power = rate × mass ×
-//!   cp(20 °C); each layer takes its share by depth (Lambert's law from the top face, and from
-//!   below where the tray lets energy through, [`Settings::bottom_entry`]) times its own
-//!   absorption ratio, which falls with the ice fraction (frozen food absorbs an order of
-//!   magnitude less).
-//! - **Layers.** Each at most [`Settings::max_layer`] thick and at most half the food's penetration
-//!   depth, so a thick piece's centre is resolved; its coldest point is its coldest node.
+//!   thawed at 20 °C ([`crate::material::REFERENCE_C`]), would warm on average over its column.
+//!   That fixes the power falling on the column: what a uniform column at the reference state
+//!   absorbs is rate × mass × cp(20 °C). Every sub-step, that incident power enters through the top
+//!   face (and the share [`Settings::bottom_entry`] through the bottom), each face letting in what
+//!   its surface layer transmits, and each layer keeps its Lambert's-law share at its own
+//!   penetration depth ([`column::deposit`]). The dielectric properties follow each layer's
+//!   temperature, ice fraction and moisture ([`crate::dielectric`]): frozen layers let power
+//!   through, thawed ones keep it, salty ones take more as they warm. The column never absorbs more
+//!   than falls on it.
+//! - **Layers.** Each at most [`Settings::max_layer`] thick and at most the food's smallest
+//!   penetration depth over its states, so a thick piece's centre is resolved; its coldest point is
+//!   its coldest node.
 //! - **Enthalpy.** Energy goes into specific enthalpy; temperature follows from the food's curve
 //!   (latent heat of fusion included, see [`crate::material`]).
 //! - **Boiling.** Above 100 °C the excess evaporates water at L_v = 2257 kJ/kg; the cell stays at
 //!   100 °C until its water is gone. The thermal curve keeps the original composition (moisture loss
 //!   of a few per cent changes it little) — a stated simplification.
 //! - **Drying.** Absorption falls with the water that has boiled off, down to the dry residue's own
-//!   small share ([`Material::moisture_factor`]), so a dried cell no longer heats as if it were
+//!   small share ([`Material::attenuation_with_moisture`]), so a dried cell no longer heats as if it were
 //!   moist. A cell with no dry matter (pure water) that boils away entirely is *boiled dry*: it holds
 //!   at the boiling point and takes no further part ([`TimeCourse::boiled_dry`]). Cells that pass
 //!   [`MODEL_LIMIT_C`] are outside the property model and scorch; callers warn about them.

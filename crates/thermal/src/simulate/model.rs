@@ -1,10 +1,10 @@
 //! The state of the tray during a simulation: one node per layer of every filled cell, and the
 //! explicit step that moves energy between them.
 
-use super::column::{layer_count, layer_span, overlap, power_shares};
+use super::column::{deposit, layer_count, layer_span, overlap};
 use super::{Edge, Load, Maps, Settings};
 use crate::composition::{BOILING_POINT, LATENT_VAPORISATION};
-use crate::material::Material;
+use crate::material::{Material, REFERENCE_C};
 
 /// Two nodes exchanging heat through `area` (m²) across `len_a` of node a and `len_b` of node b
 /// (each contributes half its length over its conductivity), plus `contact` (m²K/W) between
@@ -26,11 +26,10 @@ pub(super) struct Model<'a> {
     pub layers: Vec<usize>,
     /// The filled cells.
     pub filled: Vec<usize>,
-    /// Per node: its cell, its food item, thickness (m), share of the column's power.
+    /// Per node: its cell, its food item, thickness (m).
     pub cell: Vec<usize>,
     item: Vec<usize>,
     pub dz: Vec<f64>,
-    share: Vec<f64>,
     /// Per node: starting mass, mass, energy (kJ), water left and evaporated (kg).
     pub mass0: Vec<f64>,
     pub mass: Vec<f64>,
@@ -42,7 +41,12 @@ pub(super) struct Model<'a> {
     pub boiled_dry: Vec<bool>,
     pub temp: Vec<f64>,
     k: Vec<f64>,
-    absorb: Vec<f64>,
+    /// Per node: attenuation 1/D_p now (1/m, scaled by the moisture left), and the share of
+    /// incident power its face lets in.
+    mu: Vec<f64>,
+    transmit: Vec<f64>,
+    /// Per node, watts absorbed in the current sub-step.
+    power: Vec<f64>,
     hint: Vec<usize>,
     pairs: Vec<Pair>,
     /// Per node: side area (m²) facing a held edge, and that edge's temperature.
@@ -57,8 +61,10 @@ pub(super) struct Model<'a> {
     half_inv_k: Vec<f64>,
     /// Per node min(dH/dT), J/(kg·K).
     capacity: Vec<f64>,
-    /// Column mass of each node's cell, kg: converts the map's column rate into watts.
-    column_mass: Vec<f64>,
+    /// Per cell, the watts incident on the column per K/s of map rate: the map's rate is the
+    /// column's mean at the reference state, so a uniform column at that state absorbs exactly
+    /// rate × mass × cp.
+    incident: Vec<f64>,
     /// Per cell, the map rate averaged over the current step, K/s.
     rate: Vec<f64>,
 }
@@ -79,7 +85,6 @@ impl<'a> Model<'a> {
             cell: vec![],
             item: vec![],
             dz: vec![],
-            share: vec![],
             mass0: vec![],
             mass: vec![],
             energy: vec![],
@@ -89,7 +94,9 @@ impl<'a> Model<'a> {
             boiled_dry: vec![],
             temp: vec![],
             k: vec![],
-            absorb: vec![],
+            mu: vec![],
+            transmit: vec![],
+            power: vec![],
             hint: vec![],
             pairs: vec![],
             edge_area: vec![],
@@ -100,34 +107,40 @@ impl<'a> Model<'a> {
             gsum: vec![],
             half_inv_k: vec![],
             capacity: vec![],
-            column_mass: vec![],
+            incident: vec![0.0; n],
             rate: vec![0.0; n],
         };
         for &i in &filled {
             let c = load.cells[i].expect("filled");
             let mat = &load.items[c.item];
-            let count = layer_count(c.thickness, settings.max_layer, mat.penetration_depth);
+            let count = layer_count(c.thickness, settings.max_layer, mat.min_penetration_depth);
             first[i] = m.cell.len();
             layers[i] = count;
             let dz = c.thickness / count as f64;
-            let shares = power_shares(
-                c.thickness,
-                count,
-                mat.penetration_depth,
-                settings.bottom_entry,
+            // What a uniform column at the reference state absorbs per watt incident, by the same
+            // deposition the steps use.
+            let reference = mat.state(mat.enthalpy(REFERENCE_C), &mut 0).dielectric;
+            let mut at_reference = vec![0.0; count];
+            let b = settings.bottom_entry;
+            deposit(
+                (1.0 - b) * reference.transmission,
+                b * reference.transmission,
+                dz,
+                &vec![reference.attenuation; count],
+                &mut at_reference,
             );
-            for (l, share) in shares.into_iter().enumerate() {
+            let kept: f64 = at_reference.iter().sum();
+            m.incident[i] = mat.density * dx * dx * c.thickness * mat.reference_cp * 1000.0 / kept;
+            for l in 0..count {
                 let mass = mat.density * dx * dx * dz;
                 m.cell.push(i);
                 m.item.push(c.item);
                 m.dz.push(dz);
-                m.share.push(share);
                 m.mass0.push(mass);
                 m.energy.push(mat.enthalpy(load.start[i]) * mass);
                 m.water_left.push(mat.water * mass);
                 m.top.push(if l == 0 { 1.0 } else { 0.0 });
                 m.capacity.push(mat.min_heat_capacity * 1000.0);
-                m.column_mass.push(mat.density * dx * dx * c.thickness);
             }
         }
         let nodes = m.cell.len();
@@ -139,7 +152,9 @@ impl<'a> Model<'a> {
         m.boiled_dry = vec![false; nodes];
         m.temp = vec![f64::NAN; nodes];
         m.k = vec![0.0; nodes];
-        m.absorb = vec![0.0; nodes];
+        m.mu = vec![0.0; nodes];
+        m.transmit = vec![0.0; nodes];
+        m.power = vec![0.0; nodes];
         m.hint = vec![0; nodes];
         m.edge_area = vec![0.0; nodes];
         m.edge_temp = vec![0.0; nodes];
@@ -235,29 +250,31 @@ impl<'a> Model<'a> {
         }
     }
 
-    /// Temperature, conductivity and absorption of node `i` from its energy, mass and moisture.
+    /// Temperature, conductivity and dielectric behaviour of node `i` from its energy, mass and
+    /// moisture.
     fn set_state(&mut self, i: usize) {
         let mat = self.material(i);
-        let (t, k, a) = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
+        let s = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
+        self.temp[i] = s.t;
+        self.k[i] = s.k;
         let water0 = mat.water * self.mass0[i];
-        let moisture = if water0 > 0.0 {
-            self.water_left[i] / water0
+        // Most nodes never boil: their attenuation is the state's.
+        self.mu[i] = if self.water_left[i] < water0 {
+            mat.attenuation_with_moisture(s.dielectric.attenuation, self.water_left[i] / water0)
         } else {
-            1.0
+            s.dielectric.attenuation
         };
-        self.temp[i] = t;
-        self.k[i] = k;
-        self.absorb[i] = a * mat.moisture_factor(moisture);
+        self.transmit[i] = s.dielectric.transmission;
     }
 
     /// Takes node `i` out of the physics once nothing is left of it: it holds at the boiling point,
-    /// absorbs nothing and exchanges no heat.
+    /// absorbs nothing (power passes through it to the layer below) and exchanges no heat.
     fn dry_out(&mut self, i: usize) {
         self.boiled_dry[i] = true;
         self.temp[i] = BOILING_POINT;
         self.k[i] = 0.0;
         self.half_inv_k[i] = f64::INFINITY;
-        self.absorb[i] = 0.0;
+        self.mu[i] = 0.0;
         self.live.retain(|&j| j != i);
     }
 
@@ -336,6 +353,28 @@ impl<'a> Model<'a> {
             self.flux[p.a] += q;
             self.flux[p.b] -= q;
         }
+        if heating {
+            let b = self.settings.bottom_entry;
+            for &cell in &self.filled {
+                let nodes = self.first[cell]..self.first[cell] + self.layers[cell];
+                let incident = self.rate[cell] * self.incident[cell];
+                // Each face lets in what its outermost remaining layer transmits.
+                let face = |n: usize| !self.boiled_dry[n];
+                let top = nodes.clone().find(|&n| face(n)).unwrap_or(nodes.start);
+                let bottom = nodes
+                    .clone()
+                    .rev()
+                    .find(|&n| face(n))
+                    .unwrap_or(nodes.start);
+                deposit(
+                    incident * (1.0 - b) * self.transmit[top],
+                    incident * b * self.transmit[bottom],
+                    self.dz[nodes.start],
+                    &self.mu[nodes.clone()],
+                    &mut self.power[nodes],
+                );
+            }
+        }
         let top = self.settings.surface_h * dx * dx;
         let mut dried = false;
         for idx in 0..self.live.len() {
@@ -346,14 +385,7 @@ impl<'a> Model<'a> {
                 q += self.k[i] * self.edge_area[i] / dx * (self.edge_temp[i] - self.temp[i]);
             }
             if heating {
-                // The map's rate is the column's mean at the reference state: its power, split
-                // by depth, scaled by this node's absorption now.
-                q += self.rate[self.cell[i]]
-                    * self.column_mass[i]
-                    * self.share[i]
-                    * mat.reference_cp
-                    * 1000.0
-                    * self.absorb[i];
+                q += self.power[i];
             }
             self.energy[i] += dt * q / 1000.0;
             // Boiling: the enthalpy above the boiling point leaves as vapour.
