@@ -230,3 +230,54 @@ fn the_coldest_point_converges_in_the_time_step() {
         );
     }
 }
+
+/// Thawing time against Plank's equation (Plank 1913; as given in Singh & Heldman, *Introduction
+/// to Food Engineering*, ch. 7): t = ρL/(T_a − T_f) · (P·d/h + R·d²/k), with P = 1/2, R = 1/8 for
+/// an infinite slab of thickness d exposed on both faces. A 20 mm layer of ice on an insulated
+/// tray, its top face in 20 °C air (h = 10 W/(m²·K)), is half of a 40 mm slab. Plank neglects the
+/// sensible heat of the thawed layer, so it is known to underpredict; with a Stefan number of
+/// cp·ΔT/L ≈ 0.25 the simulated time should lie from 0 to 30 % above it.
+#[test]
+fn a_slab_thaws_in_about_planks_time() {
+    let water = catalogue::find("water").unwrap();
+    let mat = Material::food(&water.composition()).unwrap();
+    let thickness = 0.02;
+    let (h, air) = (10.0, 20.0);
+    let settings = Settings {
+        surface_h: h,
+        air,
+        standing: 60_000.0,
+        record_every: 60.0,
+        ..Settings::default()
+    };
+    let items = [mat.clone()];
+    let cells = [Some(CellFill { item: 0, thickness })];
+    let load = Load {
+        tray: Tray {
+            width: 1,
+            height: 1,
+            cell_size: 0.02,
+        },
+        items: &items,
+        cells: &cells,
+        start: &[-0.01],
+    };
+    let maps = Maps {
+        configs: 1,
+        rates: &[0.0],
+    };
+    let course = simulate(&load, &maps, &Schedule::default(), &settings).unwrap();
+    let thawed_at = course
+        .times
+        .iter()
+        .zip(&course.frames)
+        .find(|(_, f)| f[0] > 0.01)
+        .map(|(t, _)| *t)
+        .expect("thaws within the run");
+    // Plank, with the thawed water's conductivity at 10 °C (Choi–Okos 0.589 W/(m·K)) and ice's
+    // density (917 kg/m³, physics.md §1.3(a)): the latent heat is what the frozen slab holds.
+    let (rho, latent, k, d) = (917.0, 333.6e3, 0.589, 2.0 * thickness);
+    let plank = rho * latent / air * (0.5 * d / h + d * d / (8.0 * k));
+    let ratio = thawed_at / plank;
+    assert!((1.0..1.3).contains(&ratio), "thawed at {thawed_at} s, Plank {plank} s");
+}
