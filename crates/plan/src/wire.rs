@@ -66,6 +66,9 @@ struct PlanFile {
 struct HeatingDoc {
     /// Share of each cell's power entering through the tray from below, 0 to 1.
     from_below: f64,
+    /// Tray heat capacity per area, J/(m²·K); absent (0) in files written before it.
+    #[serde(default)]
+    tray_capacity: f64,
 }
 
 /// What a version-3 link carries after the plan document (postcard is positional, so additions go
@@ -74,6 +77,13 @@ struct HeatingDoc {
 struct LinkTrailer {
     library_hash: Option<u64>,
     from_below: f64,
+}
+
+/// What a version-3 link may carry after its trailer: fields added since (links made before
+/// them end at the trailer and get the defaults).
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct LinkExtension {
+    tray_capacity: f64,
 }
 
 /// The version-2 trailer.
@@ -374,6 +384,7 @@ pub fn to_json(plan: &Plan) -> String {
         library_hash: library_hash(plan).map(|h| format!("{h:016x}")),
         heating: Some(HeatingDoc {
             from_below: plan.heating.from_below,
+            tray_capacity: plan.heating.tray_capacity,
         }),
     };
     serde_json::to_string_pretty(&file).expect("plans serialise")
@@ -395,6 +406,7 @@ pub fn from_json(text: &str) -> Result<Plan, PlanError> {
     let mut plan = with_hash(Plan::try_from(file.doc)?, hash);
     if let Some(h) = file.heating {
         plan.heating.from_below = h.from_below;
+        plan.heating.tray_capacity = h.tray_capacity;
         plan.validate()?;
     }
     Ok(plan)
@@ -408,6 +420,10 @@ pub fn to_link(plan: &Plan) -> String {
         from_below: plan.heating.from_below,
     };
     bytes.extend(postcard::to_allocvec(&trailer).expect("trailers serialise"));
+    let extension = LinkExtension {
+        tray_capacity: plan.heating.tray_capacity,
+    };
+    bytes.extend(postcard::to_allocvec(&extension).expect("extensions serialise"));
     let packed = miniz_oxide::deflate::compress_to_vec(&bytes, 9);
     format!(
         "{LINK_TAG}{}",
@@ -459,23 +475,39 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
     })?;
     let unreadable = |e: postcard::Error| at(format!("holds data this version cannot read ({e})"));
     let (doc, rest): (PlanDoc, &[u8]) = postcard::take_from_bytes(&bytes).map_err(unreadable)?;
-    let trailer = match version {
-        1 => LinkTrailer {
-            library_hash: None,
-            from_below: Heating::default().from_below,
-        },
+    let defaults = LinkExtension {
+        tray_capacity: Heating::default().tray_capacity,
+    };
+    let (trailer, extension) = match version {
+        1 => (
+            LinkTrailer {
+                library_hash: None,
+                from_below: Heating::default().from_below,
+            },
+            defaults,
+        ),
         2 => {
             let old: LinkTrailerV2 = postcard::from_bytes(rest).map_err(unreadable)?;
-            LinkTrailer {
+            let trailer = LinkTrailer {
                 library_hash: old.library_hash,
                 from_below: Heating::default().from_below,
+            };
+            (trailer, defaults)
+        }
+        _ => {
+            let (trailer, more): (LinkTrailer, &[u8]) =
+                postcard::take_from_bytes(rest).map_err(unreadable)?;
+            if more.is_empty() {
+                (trailer, defaults)
+            } else {
+                (trailer, postcard::from_bytes(more).map_err(unreadable)?)
             }
         }
-        _ => postcard::from_bytes(rest).map_err(unreadable)?,
     };
     let in_link = |e: PlanError| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message);
     let mut plan = Plan::try_from(doc).map_err(in_link)?;
     plan.heating.from_below = trailer.from_below;
+    plan.heating.tray_capacity = extension.tray_capacity;
     plan.validate().map_err(in_link)?;
     Ok(with_hash(plan, trailer.library_hash))
 }

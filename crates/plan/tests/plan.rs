@@ -388,6 +388,33 @@ fn heating_from_below_travels_and_is_checked() {
     );
 }
 
+/// The tray's heat capacity travels in files and links; a version-3 link made before it (no
+/// extension after the trailer) still reads, with no tray capacity; a negative one is refused at
+/// its field.
+#[test]
+fn tray_capacity_travels_and_older_links_still_read() {
+    use base64::Engine;
+    let mut plan = demos::demo("side-by-side").unwrap();
+    plan.heating.tray_capacity = 1400.0;
+    let json = wire::to_json(&plan);
+    assert_eq!(wire::from_json(&json).unwrap(), plan);
+    let link = wire::to_link(&plan);
+    assert_eq!(wire::from_link(&link).unwrap(), plan);
+    // The same link as the previous release wrote it: without the 8-byte extension.
+    let b64 = base64::engine::general_purpose::URL_SAFE_NO_PAD;
+    let packed = b64.decode(link.strip_prefix("tc3.").unwrap()).unwrap();
+    let bytes = miniz_oxide::inflate::decompress_to_vec(&packed).unwrap();
+    let older = miniz_oxide::deflate::compress_to_vec(&bytes[..bytes.len() - 8], 9);
+    let read = wire::from_link(&format!("tc3.{}", b64.encode(older))).unwrap();
+    assert_eq!(read.heating.tray_capacity, 0.0);
+    assert_eq!(read.heating.from_below, plan.heating.from_below);
+    let bad = json.replace("\"tray_capacity\": 1400.0", "\"tray_capacity\": -1.0");
+    assert_eq!(
+        wire::from_json(&bad).unwrap_err().place,
+        Place::from("heating.tray_capacity")
+    );
+}
+
 /// The plan names its library: a library of another name is refused, never solved on silently;
 /// the evaluator's caches follow a library replaced by one with other content.
 #[test]

@@ -279,5 +279,53 @@ fn a_slab_thaws_in_about_planks_time() {
     let (rho, latent, k, d) = (917.0, 333.6e3, 0.589, 2.0 * thickness);
     let plank = rho * latent / air * (0.5 * d / h + d * d / (8.0 * k));
     let ratio = thawed_at / plank;
-    assert!((1.0..1.3).contains(&ratio), "thawed at {thawed_at} s, Plank {plank} s");
+    assert!(
+        (1.0..1.3).contains(&ratio),
+        "thawed at {thawed_at} s, Plank {plank} s"
+    );
+}
+
+/// A tray plate with a heat capacity shares the energy: after a long stand the column and the
+/// plate settle at T₀ + E/(C_food + C_tray) (first law, lumped capacities), where an insulated
+/// bottom keeps it all in the food. And the plate cools the bottom of a real piece.
+#[test]
+fn a_tray_plate_takes_its_share_of_the_heat() {
+    let mat = Material::constant(1000.0, 4.0, 0.5)
+        .unwrap()
+        .with_penetration_depth(f64::INFINITY)
+        .unwrap();
+    let (thickness, side, rate, heat) = (0.02, 0.02, 0.25, 120.0);
+    let plate = 8000.0; // J/(m²·K), about a 4 mm glass plate (2500 kg/m³ × 0.8 kJ/(kg·K))
+    let settings = Settings {
+        surface_h: 0.0,
+        standing: 20_000.0,
+        tray_capacity: plate,
+        ..Settings::default()
+    };
+    let course = column(&mat, thickness, 10.0, rate, heat, settings);
+    let c_food = 1000.0 * 4000.0 * side * side * thickness;
+    let c_tray = plate * side * side;
+    let energy = rate * heat * c_food;
+    let want = 10.0 + energy / (c_food + c_tray);
+    assert!(
+        (course.mean_after_standing[0] - want).abs() < 0.01,
+        "{} vs {want}",
+        course.mean_after_standing[0]
+    );
+
+    let chicken = catalogue::find("chicken-breast").unwrap();
+    let mat = Material::food(&chicken.composition()).unwrap();
+    let run = |tray_capacity: f64| {
+        let s = Settings {
+            tray_capacity,
+            ..Settings::default()
+        };
+        column(&mat, 0.03, 5.0, 0.25, 240.0, s).after_standing[0]
+    };
+    assert!(
+        run(plate) < run(0.0) - 0.5,
+        "{} vs {}",
+        run(plate),
+        run(0.0)
+    );
 }

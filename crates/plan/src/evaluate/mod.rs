@@ -162,11 +162,10 @@ impl Evaluator {
             Sequencing::Blocks => Schedule::blocks(&dwell),
             Sequencing::Rounds(r) => Schedule::rounds(&dwell, r as usize),
         };
-        let settings = Settings {
+        let settings = plan.heating.settings(Settings {
             standing: plan.oven.standing_s,
-            bottom_entry: plan.heating.from_below,
             ..Settings::default()
-        };
+        });
         let course = time_course(plan, maps, &self.mats, &schedule, &settings)?;
         let error_linear = prep.band_errors(&linear);
         let error_simulated = prep.band_errors(&course.after_standing);

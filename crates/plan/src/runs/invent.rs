@@ -72,13 +72,12 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         .collect();
     // The probes read each column's mean: calibration fits column-mean warming rates (a probe at
     // one depth of a thick piece would read its own layer, which calibration does not yet model).
-    let settings = Settings {
+    let settings = plan.heating.settings(Settings {
         standing: 0.0,
         record_every: recipe.step,
         frames: traycast_thermal::simulate::View::Mean,
-        bottom_entry: plan.heating.from_below,
         ..Settings::default()
-    };
+    });
     let mut rng = traycast_rng::SplitMix::new(recipe.seed);
     let mut out = format!(
         "# traycast-runs 1\n# name: Illustrative bench runs, {} (invented data)\n# each configuration heated alone for {} s, probes every {} cell(s), sensor lag {} s, noise {} K\nrun,config,time_s,row,col,temp_c\n",

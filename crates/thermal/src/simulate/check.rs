@@ -127,6 +127,13 @@ pub(super) fn validate(
         1.0,
         "0 to 1",
     )?;
+    in_range(
+        "tray heat capacity (J/(m²·K))",
+        settings.tray_capacity,
+        0.0,
+        1e6,
+        "0 to 1 000 000",
+    )?;
     for edge in [settings.edges.x, settings.edges.y] {
         if let Edge::Fixed(t) = edge {
             in_range("edge temperature (°C)", t, -60.0, 300.0, "−60 to 300 °C")?;

@@ -31,7 +31,11 @@
 //!   resistances Δz/(2k)), and between layers of side-by-side cells that overlap in height (area
 //!   Δx × overlap, half-cell resistances Δx/(2k), plus 1/h_c between different food items).
 //! - **Surface loss.** The top layer loses h·(T − T_air) (h ≈ 10 W/(m²·K): air nearly still, an
-//!   assumption; no citable in-oven value exists). The tray bottom is insulated.
+//!   assumption; no citable in-oven value exists).
+//! - **Tray bottom.** Insulated, or a plate with a heat capacity per area
+//!   ([`Settings::tray_capacity`]) under each cell, exchanging heat with the bottom layer through
+//!   the contact conductance; the plate takes no microwave power and does not spread heat
+//!   sideways (a simplification).
 //! - **Tray edges** are insulated, or held at a temperature through a ghost cell one pitch outside.
 //!
 //! **Stability.** The explicit step is stable and positivity-preserving when, for every node,
@@ -132,13 +136,19 @@ pub struct Settings {
     /// Share of each column's power that enters through its bottom face (0 to 1): 0 for a tray
     /// that lets no energy through from below, 0.5 for food heated equally from both faces.
     pub bottom_entry: f64,
+    /// Heat capacity of the tray under each square metre of food, J/(m²·K): it starts at the
+    /// food's start temperature and exchanges heat with the bottom layer through the contact
+    /// conductance. 0 for a bottom that is insulated and stores no heat. A 0.8 mm polypropylene
+    /// tray is about 1 400 (900 kg/m³ × 1.9 kJ/(kg·K) × 0.8 mm, typical handbook values recalled
+    /// from memory).
+    pub tray_capacity: f64,
 }
 
 impl Default for Settings {
     /// h = 10 W/(m²·K), contact 200 W/(m²·K) (assumed), air 25 °C, standing 120 s (FDA Food Code
     /// 3-401.12), 4 s steps (the configurations' power averaged within each; split where stability
-    /// asks), a frame every 5 s, insulated edges, layers at most 4 mm, and all power
-    /// entering from the top. Top-only entry is the conservative assumption for the coldest point
+    /// asks), a frame every 5 s, insulated edges, layers at most 4 mm, all power entering from
+    /// the top, and an insulated tray bottom that stores no heat. Top-only entry is the conservative assumption for the coldest point
     /// (heated from one face, a thick piece's far side stays coldest); a common-practice default
     /// until the tray's share is known, not a measured value.
     fn default() -> Self {
@@ -153,6 +163,7 @@ impl Default for Settings {
             frames: View::Coldest,
             max_layer: 0.004,
             bottom_entry: 0.0,
+            tray_capacity: 0.0,
         }
     }
 }

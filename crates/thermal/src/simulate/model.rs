@@ -67,6 +67,11 @@ pub(super) struct Model<'a> {
     incident: Vec<f64>,
     /// Per cell, the map rate averaged over the current step, K/s.
     rate: Vec<f64>,
+    /// Per filled cell (in `filled` order) with a tray plate: its heat capacity (J/K),
+    /// temperature (°C) and conductance to the bottom layer (W/K).
+    tray_cap: Vec<f64>,
+    tray_temp: Vec<f64>,
+    tray_g: Vec<f64>,
 }
 
 impl<'a> Model<'a> {
@@ -109,6 +114,9 @@ impl<'a> Model<'a> {
             capacity: vec![],
             incident: vec![0.0; n],
             rate: vec![0.0; n],
+            tray_cap: vec![],
+            tray_temp: vec![],
+            tray_g: vec![],
         };
         for &i in &filled {
             let c = load.cells[i].expect("filled");
@@ -161,6 +169,11 @@ impl<'a> Model<'a> {
         m.flux = vec![0.0; nodes];
         m.gsum = vec![0.0; nodes];
         m.half_inv_k = vec![f64::INFINITY; nodes];
+        if settings.tray_capacity > 0.0 {
+            m.tray_cap = vec![settings.tray_capacity * dx * dx; filled.len()];
+            m.tray_temp = filled.iter().map(|&i| load.start[i]).collect();
+            m.tray_g = vec![0.0; filled.len()];
+        }
         m.filled = filled;
         m.connect();
         m.cond = vec![0.0; m.pairs.len()];
@@ -294,6 +307,25 @@ impl<'a> Model<'a> {
             self.gsum[p.a] += *g;
             self.gsum[p.b] += *g;
         }
+        if !self.tray_cap.is_empty() {
+            let contact = 1.0 / self.settings.contact_conductance;
+            for (c, &cell) in self.filled.iter().enumerate() {
+                let bottom = self.first[cell] + self.layers[cell] - 1;
+                let r = contact + self.dz[bottom] * self.half_inv_k[bottom];
+                self.tray_g[c] = dx * dx / r;
+                self.gsum[bottom] += self.tray_g[c];
+            }
+        }
+    }
+
+    /// Largest stable step of the tray plates, C/G (infinite without a plate).
+    fn tray_step(&self) -> f64 {
+        self.tray_cap
+            .iter()
+            .zip(&self.tray_g)
+            .filter(|(_, g)| **g > 0.0)
+            .map(|(c, g)| c / g)
+            .fold(f64::INFINITY, f64::min)
     }
 
     /// Largest stable step, min over nodes of C/ΣG, with the conductances from [`Self::conductances`].
@@ -304,7 +336,7 @@ impl<'a> Model<'a> {
                 best = best.min(self.mass[i] * self.capacity[i] / self.gsum[i]);
             }
         }
-        best
+        best.min(self.tray_step())
     }
 
     /// True when a step of `dt` is within 0.9 of every node's limit (multiplications only).
@@ -312,6 +344,7 @@ impl<'a> Model<'a> {
         self.live
             .iter()
             .all(|&i| dt * self.gsum[i] <= 0.9 * self.mass[i] * self.capacity[i])
+            && dt <= 0.9 * self.tray_step()
     }
 
     /// Advances by `dt` seconds during which each configuration in `power` runs for its seconds
@@ -352,6 +385,12 @@ impl<'a> Model<'a> {
             let q = g * (self.temp[p.b] - self.temp[p.a]);
             self.flux[p.a] += q;
             self.flux[p.b] -= q;
+        }
+        for (c, &cell) in self.filled.iter().enumerate().take(self.tray_cap.len()) {
+            let bottom = self.first[cell] + self.layers[cell] - 1;
+            let q = self.tray_g[c] * (self.tray_temp[c] - self.temp[bottom]);
+            self.flux[bottom] += q;
+            self.tray_temp[c] -= dt * q / self.tray_cap[c];
         }
         if heating {
             let b = self.settings.bottom_entry;
