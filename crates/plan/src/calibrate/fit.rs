@@ -9,6 +9,9 @@ use crate::runs::Reading;
 /// Below this robust spread, K, residuals are treated as this spread (readings are rarely finer
 /// than 0.1 K; an exact synthetic line would otherwise make every reading an outlier).
 const SPREAD_FLOOR_K: f64 = 0.02;
+/// Standard deviation of rounding readings to 0.1 K, 0.1/√12 K: the least residual spread a fit
+/// is credited with.
+const QUANTISATION_SD_K: f64 = 0.028_867_513_459_481_29;
 
 /// What the estimation did with one probe series.
 #[derive(Clone, Debug, PartialEq)]
@@ -31,6 +34,9 @@ pub struct ProbeFit {
     pub curved: bool,
     /// Why the probe is suspect, if it is (its cell is then filled unless another probe covers it).
     pub suspect: Option<String>,
+    /// The readings the fit ran over, as indices into the series (outliers inside it excluded
+    /// from the fit); empty without a fit.
+    pub window: std::ops::Range<usize>,
 }
 
 /// Fits one series (`freeze_c`: the food's initial freezing point; `settle_s`: time skipped at the
@@ -65,6 +71,7 @@ pub fn fit_series(
         outliers: Vec::new(),
         curved: false,
         suspect: None,
+        window: 0..0,
     };
     loop {
         if b - a < settings.min_fit {
@@ -117,11 +124,22 @@ pub fn fit_series(
             }
         }
         result.curved = bend.abs() > settings.curvature_t;
-        result.fit = regression::line(&t, &y);
+        result.fit = regression::line(&t, &y).map(|mut f| {
+            // Readings are rarely finer than 0.1 K: the residual spread is at least that
+            // quantisation's, 0.1/√12 K, or a noise-free run would claim an exact slope.
+            if f.residual_sd < QUANTISATION_SD_K && f.n > 2 {
+                let mean = t.iter().sum::<f64>() / t.len() as f64;
+                let sxx: f64 = t.iter().map(|v| (v - mean).powi(2)).sum();
+                f.residual_sd = QUANTISATION_SD_K;
+                f.slope_se = QUANTISATION_SD_K / sxx.sqrt();
+            }
+            f
+        });
         result.used = inliers.len();
         result.outliers = outliers;
         result.lag = a - start;
         result.late = n - b;
+        result.window = a..b;
         break;
     }
     if result.fit.is_none() {

@@ -4,6 +4,8 @@
 //! - this module: [`Settings`] and [`calibrate`], which runs the steps below in order;
 //! - `fit`: one probe series → a rate over the straight part of its curve ([`fit_series`]);
 //! - `fill`: estimates combined per cell, unmeasured cells filled from neighbours;
+//! - `absorbed`: from observed slopes to absorbed power, removing each run's own conduction,
+//!   surface loss and warming absorption by simulating it ([`LossCorrection`]);
 //! - `report`: the quality report and the per-probe table.
 //!
 //! For every probe series the heating rate is the least-squares slope over the straight part of
@@ -36,11 +38,13 @@
 //! the food's spatial variation in that configuration, a linear semivariogram γ(d) = γ₁·d fitted
 //! from measured pairs at the shortest lag available (1 to 4 cells along rows and columns) and
 
+mod absorbed;
 mod fill;
 mod fit;
 mod report;
 
 pub use crate::regression::{LineFit, line as fit_line};
+pub use absorbed::{LossCorrection, MAX_PASSES, TOLERANCE};
 pub use fit::{MAX_LAG_S, ProbeFit, fit_series, sensor_lag};
 pub use report::{ConfigQuality, Note, NoteKind, QualityReport, Repeatability};
 
@@ -70,6 +74,9 @@ pub struct Settings {
     /// Sensor time constants skipped at the start of the straight part (the lag transient decays
     /// as e^(−t/τ): 4 leave 2 %).
     pub settle_time_constants: f64,
+    /// Remove each run's own conduction, surface loss and warming absorption from the slopes
+    /// (see `absorbed`); off leaves the observed slopes, which are biased.
+    pub remove_run_losses: bool,
 }
 
 impl Default for Settings {
@@ -82,6 +89,7 @@ impl Default for Settings {
             min_fit: 5,
             settle_time_constants: 4.0,
             tail_t: 2.5,
+            remove_run_losses: true,
         }
     }
 }
@@ -312,6 +320,13 @@ pub fn calibrate(
             }),
         });
     }
+    let loss_correction = if settings.remove_run_losses {
+        Some(absorbed::remove_run_losses(
+            layout, runs, &fits, &mut rates, &mut se, &filled,
+        )?)
+    } else {
+        None
+    };
     // Most actionable first: suspect probes, disagreeing repeats, outliers, then filled cells.
     notes.sort_by_key(|x| (x.kind as u8, x.config, x.cell));
     let library = MapLibrary {
@@ -347,6 +362,7 @@ pub fn calibrate(
             configs: qualities,
             notes,
             settings: *settings,
+            loss_correction,
         },
         fits,
     })

@@ -1,7 +1,7 @@
 //! What a calibration reports: per-configuration quality, notes about cells and probes, the text
 //! report and the per-probe table.
 
-use super::{Calibration, Settings};
+use super::{Calibration, LossCorrection, Settings};
 use crate::regression;
 use crate::runs::HeatingRuns;
 
@@ -106,6 +106,8 @@ pub struct QualityReport {
     pub notes: Vec<Note>,
     /// The settings used.
     pub settings: Settings,
+    /// What removing the runs' own conduction and surface loss did (None when switched off).
+    pub loss_correction: Option<LossCorrection>,
 }
 
 impl QualityReport {
@@ -123,7 +125,7 @@ impl QualityReport {
         let lag_median = regression::median(&mut lags);
         let mut out = format!(
             "Calibration of '{}' on layout '{}'\n{} runs, {} readings on food ({} over empty cells ignored), {} configurations.\n\
-             Method: least-squares slope over the straight part of each probe's curve. Dropped: readings up to the last one below the freezing point + {} K (rates are for thawed food); readings from {} °C up; the first {} sensor time constants of the straight part (τ estimated per run: median {:.1} s, range {:.1}–{:.1} s); leading or trailing readings while a quadratic term is significant (|t| > {}) or the last readings fall below the line (< −{} SE); outliers beyond {} robust σ. Repeats: inverse-variance mean, error widened by the Birge ratio. Unmeasured cells: nearest measured cell of the same food, error widened by the food's spatial variation.\n\n",
+             Method: least-squares slope over the straight part of each probe's curve, then the run's own conduction, surface loss and warming absorption removed by simulating each run and moving every rate by observed − simulated slope until they agree. Dropped: readings up to the last one below the freezing point + {} K (rates are for thawed food); readings from {} °C up; the first {} sensor time constants of the straight part (τ estimated per run: median {:.1} s, range {:.1}–{:.1} s); leading or trailing readings while a quadratic term is significant (|t| > {}) or the last readings fall below the line (< −{} SE); outliers beyond {} robust σ. Repeats: inverse-variance mean, error widened by the Birge ratio. Unmeasured cells: nearest measured cell of the same food, error widened by the food's spatial variation.\n\n",
             self.name,
             self.layout,
             self.runs,
@@ -140,6 +142,23 @@ impl QualityReport {
             s.tail_t,
             s.outlier_sigmas
         );
+        match &self.loss_correction {
+            Some(l) => out.push_str(&format!(
+                "Absorbed power: rates moved by a median {} (largest {}) from the observed slopes, {} pass(es); {} cell-configuration(s) boiled within their window, held at their closest match with wider errors{}.\n\n",
+                pct(l.median_change),
+                pct(l.largest_change),
+                l.passes,
+                l.saturated,
+                if l.converged {
+                    ""
+                } else {
+                    "; did NOT settle: the rates are approximate"
+                }
+            )),
+            None => out.push_str(
+                "Absorbed power: not corrected; the rates are the observed slopes, which include the runs' conduction and surface loss.\n\n",
+            ),
+        }
         out.push_str("config  runs             probes  measured  filled  median r²  median SE/rate  outliers  suspect  repeatability\n");
         for q in &self.configs {
             let runs = q.runs.join(",");
@@ -274,6 +293,13 @@ impl QualityReport {
             "runs": self.runs,
             "readings": self.readings,
             "ignored_readings": self.ignored,
+            "loss_correction": self.loss_correction.map(|l| serde_json::json!({
+                "passes": l.passes,
+                "converged": l.converged,
+                "median_change": num(l.median_change),
+                "largest_change": num(l.largest_change),
+                "saturated": l.saturated,
+            })),
             "sensor_lag_s": self.sensor_lag_s.iter().map(|(run, tau)| serde_json::json!({"run": run, "tau_s": num(*tau)})).collect::<Vec<_>>(),
             "configurations": self.configs.iter().map(|q| serde_json::json!({
                 "config": q.config,

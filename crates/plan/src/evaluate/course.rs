@@ -18,18 +18,34 @@ pub fn time_course(
     schedule: &Schedule,
     settings: &Settings,
 ) -> Result<TimeCourse, PlanError> {
-    let n = maps.cells;
-    let cells: Vec<Option<CellFill>> = (0..n)
+    let start: Vec<f64> = super::problem::start_temps(plan)
+        .iter()
+        .map(|v| if v.is_nan() { 20.0 } else { *v })
+        .collect();
+    let rates = simulate::Maps {
+        configs: maps.configs,
+        rates: &maps.thawed,
+    };
+    simulate_load(plan, &start, rates, mats, schedule, settings)
+}
+
+/// Simulates `schedule` on the plan's load from the per-cell temperatures `start` under reference-
+/// state `rates`; a diverging state is an error naming the cell and the item.
+pub(crate) fn simulate_load(
+    plan: &Plan,
+    start: &[f64],
+    rates: simulate::Maps,
+    mats: &[Material],
+    schedule: &Schedule,
+    settings: &Settings,
+) -> Result<TimeCourse, PlanError> {
+    let cells: Vec<Option<CellFill>> = (0..plan.tray.cells())
         .map(|i| {
             plan.item_at(i).map(|k| CellFill {
                 item: k,
                 thickness: plan.items[k].thickness_mm / 1000.0,
             })
         })
-        .collect();
-    let start: Vec<f64> = super::problem::start_temps(plan)
-        .iter()
-        .map(|v| if v.is_nan() { 20.0 } else { *v })
         .collect();
     let load = Load {
         tray: Tray {
@@ -39,13 +55,9 @@ pub fn time_course(
         },
         items: mats,
         cells: &cells,
-        start: &start,
+        start,
     };
-    let sim_maps = simulate::Maps {
-        configs: maps.configs,
-        rates: &maps.thawed,
-    };
-    simulate::simulate(&load, &sim_maps, schedule, settings).map_err(|e| match e {
+    simulate::simulate(&load, &rates, schedule, settings).map_err(|e| match e {
         ThermalError::Diverged { cell, time_s } => PlanError::new(
             Place::Cell {
                 row: cell / plan.tray.width,

@@ -22,6 +22,7 @@ mod report;
 mod verdicts;
 
 pub use baseline::baseline;
+pub(crate) use course::simulate_load;
 pub use course::time_course;
 pub use diagnosis::Diagnosis;
 pub use maps::{PlanMaps, Provenance, maps_for, materials};
