@@ -367,6 +367,8 @@ pub fn App() -> impl IntoView {
                             on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| if let Some(i) = p.items.get_mut(k) { i.thickness_mm = v; }); } /></label>
                         <label>{move || format!("start {}", unit.get().symbol())}<input class="short" type="number" step="1" prop:value=move || plan.with(|p| p.items.get(k).map(|i| format!("{:.1}", unit.get().temp(i.start_c))).unwrap_or_default())
                             on:change=move |ev| if let Some(v) = num(&ev) { let c = unit.get_untracked().to_celsius(v); edit(&|p| if let Some(i) = p.items.get_mut(k) { i.start_c = c; }); } /></label>
+                        <label title="A cover keeps the moisture in; the Food Code asks for one when cooking raw animal foods">"covered"<input type="checkbox" prop:checked=move || plan.with(|p| p.items.get(k).is_some_and(|i| i.covered))
+                            on:change=move |ev| { let on = event_target_checked(&ev); edit(&|p| if let Some(i) = p.items.get_mut(k) { i.covered = on; }); } /></label>
                     </div>
                 }
             })
@@ -614,7 +616,7 @@ pub fn App() -> impl IntoView {
             <section class="tools">
                 <h2>"Foods"</h2>
                 {item_rows}
-                <button on:click=move |_| edit(&|p| if p.items.len() < 26 { p.items.push(FoodItem { name: format!("Food {}", p.items.len() + 1), food: "rice".into(), thickness_mm: 20.0, start_c: 4.0 }); })>"Add food item"</button>
+                <button on:click=move |_| edit(&|p| if p.items.len() < 26 { p.items.push(FoodItem { name: format!("Food {}", p.items.len() + 1), food: "rice".into(), thickness_mm: 20.0, start_c: 4.0, covered: false }); })>"Add food item"</button>
                 <h2>"Targets"</h2>
                 {zone_rows}
                 <button on:click=move |_| edit(&|p| if p.zones.len() < 26 { p.zones.push(Zone { name: format!("Target {}", p.zones.len() + 1), min_c: 70.0, max_c: 80.0, weight: 1.0, cap_c: None }); })>"Add target"</button>

@@ -41,6 +41,7 @@ fn item(name: &str, food: &str, thickness_mm: f64, start_c: f64) -> FoodItem {
         food: food.into(),
         thickness_mm,
         start_c,
+        covered: false,
     }
 }
 
@@ -81,6 +82,8 @@ pub fn demo(name: &str) -> Option<Plan> {
             // An illustrative tray that lets microwaves through its base (glass, ceramic or
             // plastic): half of each cell's power enters from below.
             p.heating.from_below = 0.5;
+            // The raw chicken is covered, as the Food Code asks for microwave cooking.
+            p.items[0].covered = true;
             p
         }
         "frozen-portion" => {
@@ -133,6 +136,7 @@ pub fn benchmark_tray() -> Plan {
             food: f.to_string(),
             thickness_mm: 20.0,
             start_c: 4.0,
+            covered: false,
         })
         .collect();
     p.zones = vec![

@@ -41,6 +41,10 @@ pub struct FoodItem {
     pub thickness_mm: f64,
     /// Start temperature, °C.
     pub start_c: f64,
+    /// Covered while heating: no moisture lost below boiling. The FDA Food Code asks raw animal
+    /// foods cooked in a microwave to be covered (3-401.12(B)). Uncovered is the default: its
+    /// evaporation cools the food, the cautious side for the coldest point.
+    pub covered: bool,
 }
 
 /// A set of cells sharing one target band.

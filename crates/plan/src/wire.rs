@@ -1,7 +1,7 @@
-//! File and link formats of our own: plan JSON ("traycast-plan" version 3; versions 1 and 2 are
-//! read), the share link ("tc3." + URL-safe base64 of deflated postcard bytes, a trailer after
-//! the plan carrying the library's content hash and how power enters the food; "tc2." and "tc1."
-//! links are read), and the controller schedule CSV.
+//! File and link formats of our own: plan JSON ("traycast-plan" version 4; versions 1 to 3 are
+//! read), the share link ("tc4." + URL-safe base64 of deflated postcard bytes, a trailer after
+//! the plan carrying the library's content hash and how power and heat cross the tray; "tc3.",
+//! "tc2." and "tc1." links are read), and the controller schedule CSV.
 //!
 //! These types are the boundary: versioned, separate from [`crate::model`], and every field is
 //! validated on the way in. Untrusted input becomes a [`PlanError`], never a panic.
@@ -15,12 +15,15 @@ use traycast_thermal::schedule::Schedule;
 
 const FORMAT: &str = "traycast-plan";
 /// The version written. Version 2 added the library's content hash, version 3 how power enters
-/// the food (`heating`); versions 1 and 2 are still read (with the default heating).
-const VERSION: u32 = 3;
+/// the food (`heating`), version 4 the tray's heat capacity and whether each item is covered;
+/// older versions are still read (with the defaults for what they lack).
+const VERSION: u32 = 4;
 /// Versions read.
-const READS: [u32; 3] = [1, 2, 3];
+const READS: [u32; 4] = [1, 2, 3, 4];
 /// Prefix of a share link's payload (format tag and version).
-pub const LINK_TAG: &str = "tc3.";
+pub const LINK_TAG: &str = "tc4.";
+/// The third link format, still read: items without a cover, a trailer without the tray.
+pub const LINK_TAG_V3: &str = "tc3.";
 /// The second link format, still read: its trailer has only the library hash.
 pub const LINK_TAG_V2: &str = "tc2.";
 /// The first link format, still read: the same payload without the trailer.
@@ -32,13 +35,14 @@ pub const MAX_INFLATED: usize = 256 * 1024;
 /// Longest plan JSON read, bytes (a 128 × 128 plan is well under 1 MiB).
 pub const MAX_PLAN_JSON: usize = 16 << 20;
 
+/// The plan document; links before version 4 carry [`ItemDocV3`] items.
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
-struct PlanDoc {
+struct PlanDoc<I = ItemDoc> {
     format: String,
     version: u32,
     name: String,
     tray: TrayDoc,
-    items: Vec<ItemDoc>,
+    items: Vec<I>,
     /// Rows of the food grid: '.' empty, 'A'… the items in order.
     food: Vec<String>,
     zones: Vec<ZoneDoc>,
@@ -61,29 +65,31 @@ struct PlanFile {
     heating: Option<HeatingDoc>,
 }
 
-/// How power enters the food (version 3).
+/// How power and heat cross the tray (version 3; the tray's heat capacity since version 4).
 #[derive(Serialize, Deserialize, Debug, Clone, Copy, PartialEq)]
 struct HeatingDoc {
     /// Share of each cell's power entering through the tray from below, 0 to 1.
     from_below: f64,
-    /// Tray heat capacity per area, J/(m²·K); absent (0) in files written before it.
+    /// Tray heat capacity per area, J/(m²·K); absent (0) in version-3 files.
     #[serde(default)]
     tray_capacity: f64,
 }
 
-/// What a version-3 link carries after the plan document (postcard is positional, so additions go
-/// in a trailer: version-1 links lack it, version-2 links have only the hash).
+/// What a version-4 link carries after the plan document (postcard is positional, so additions go
+/// in a trailer: version-1 links lack it, version-2 links have only the hash, version-3 links
+/// lack the tray).
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
 struct LinkTrailer {
     library_hash: Option<u64>,
     from_below: f64,
+    tray_capacity: f64,
 }
 
-/// What a version-3 link may carry after its trailer: fields added since (links made before
-/// them end at the trailer and get the defaults).
+/// The version-3 trailer.
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
-struct LinkExtension {
-    tray_capacity: f64,
+struct LinkTrailerV3 {
+    library_hash: Option<u64>,
+    from_below: f64,
 }
 
 /// The version-2 trailer.
@@ -120,6 +126,46 @@ struct ItemDoc {
     food: String,
     thickness_mm: f64,
     start_c: f64,
+    /// Since version 4; absent (false) in older files.
+    #[serde(default)]
+    covered: bool,
+}
+
+/// An item as links before version 4 carry it (postcard is positional).
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct ItemDocV3 {
+    name: String,
+    food: String,
+    thickness_mm: f64,
+    start_c: f64,
+}
+
+impl PlanDoc<ItemDocV3> {
+    /// The document with its items uncovered, as they were before covers were recorded.
+    fn upgrade(self) -> PlanDoc {
+        PlanDoc {
+            format: self.format,
+            version: self.version,
+            name: self.name,
+            tray: self.tray,
+            items: self
+                .items
+                .into_iter()
+                .map(|i| ItemDoc {
+                    name: i.name,
+                    food: i.food,
+                    thickness_mm: i.thickness_mm,
+                    start_c: i.start_c,
+                    covered: false,
+                })
+                .collect(),
+            food: self.food,
+            zones: self.zones,
+            zone: self.zone,
+            oven: self.oven,
+            maps: self.maps,
+        }
+    }
 }
 
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
@@ -227,6 +273,7 @@ impl From<&Plan> for PlanDoc {
                     food: i.food.clone(),
                     thickness_mm: i.thickness_mm,
                     start_c: i.start_c,
+                    covered: i.covered,
                 })
                 .collect(),
             food: grid_rows(&p.food, p.tray.width, b'A'),
@@ -340,6 +387,7 @@ impl TryFrom<PlanDoc> for Plan {
                     food: i.food,
                     thickness_mm: i.thickness_mm,
                     start_c: i.start_c,
+                    covered: i.covered,
                 })
                 .collect(),
             food,
@@ -418,12 +466,9 @@ pub fn to_link(plan: &Plan) -> String {
     let trailer = LinkTrailer {
         library_hash: library_hash(plan),
         from_below: plan.heating.from_below,
-    };
-    bytes.extend(postcard::to_allocvec(&trailer).expect("trailers serialise"));
-    let extension = LinkExtension {
         tray_capacity: plan.heating.tray_capacity,
     };
-    bytes.extend(postcard::to_allocvec(&extension).expect("extensions serialise"));
+    bytes.extend(postcard::to_allocvec(&trailer).expect("trailers serialise"));
     let packed = miniz_oxide::deflate::compress_to_vec(&bytes, 9);
     format!(
         "{LINK_TAG}{}",
@@ -441,10 +486,10 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
             link.len()
         )));
     }
-    let tagged = [LINK_TAG, LINK_TAG_V2, LINK_TAG_V1]
+    let tagged = [LINK_TAG, LINK_TAG_V3, LINK_TAG_V2, LINK_TAG_V1]
         .into_iter()
         .enumerate()
-        .find_map(|(k, tag)| link.strip_prefix(tag).map(|body| (body, 3 - k)));
+        .find_map(|(k, tag)| link.strip_prefix(tag).map(|body| (body, 4 - k)));
     let (body, version) = match tagged {
         Some(found) => found,
         None => {
@@ -474,40 +519,42 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
         }
     })?;
     let unreadable = |e: postcard::Error| at(format!("holds data this version cannot read ({e})"));
-    let (doc, rest): (PlanDoc, &[u8]) = postcard::take_from_bytes(&bytes).map_err(unreadable)?;
-    let defaults = LinkExtension {
-        tray_capacity: Heating::default().tray_capacity,
+    let (doc, rest): (PlanDoc, &[u8]) = if version >= 4 {
+        postcard::take_from_bytes(&bytes).map_err(unreadable)?
+    } else {
+        let (old, rest): (PlanDoc<ItemDocV3>, &[u8]) =
+            postcard::take_from_bytes(&bytes).map_err(unreadable)?;
+        (old.upgrade(), rest)
     };
-    let (trailer, extension) = match version {
-        1 => (
-            LinkTrailer {
-                library_hash: None,
-                from_below: Heating::default().from_below,
-            },
-            defaults,
-        ),
+    let defaults = Heating::default();
+    let trailer = match version {
+        1 => LinkTrailer {
+            library_hash: None,
+            from_below: defaults.from_below,
+            tray_capacity: defaults.tray_capacity,
+        },
         2 => {
             let old: LinkTrailerV2 = postcard::from_bytes(rest).map_err(unreadable)?;
-            let trailer = LinkTrailer {
+            LinkTrailer {
                 library_hash: old.library_hash,
-                from_below: Heating::default().from_below,
-            };
-            (trailer, defaults)
-        }
-        _ => {
-            let (trailer, more): (LinkTrailer, &[u8]) =
-                postcard::take_from_bytes(rest).map_err(unreadable)?;
-            if more.is_empty() {
-                (trailer, defaults)
-            } else {
-                (trailer, postcard::from_bytes(more).map_err(unreadable)?)
+                from_below: defaults.from_below,
+                tray_capacity: defaults.tray_capacity,
             }
         }
+        3 => {
+            let old: LinkTrailerV3 = postcard::from_bytes(rest).map_err(unreadable)?;
+            LinkTrailer {
+                library_hash: old.library_hash,
+                from_below: old.from_below,
+                tray_capacity: defaults.tray_capacity,
+            }
+        }
+        _ => postcard::from_bytes(rest).map_err(unreadable)?,
     };
     let in_link = |e: PlanError| PlanError::new(Place::Link(Some(Box::new(e.place))), e.message);
     let mut plan = Plan::try_from(doc).map_err(in_link)?;
     plan.heating.from_below = trailer.from_below;
-    plan.heating.tray_capacity = extension.tray_capacity;
+    plan.heating.tray_capacity = trailer.tray_capacity;
     plan.validate().map_err(in_link)?;
     Ok(with_hash(plan, trailer.library_hash))
 }

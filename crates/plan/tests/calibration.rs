@@ -62,12 +62,14 @@ fn layout() -> Plan {
             food: "lasagne".into(),
             thickness_mm: 30.0,
             start_c: -18.0,
+            covered: false,
         },
         FoodItem {
             name: "Carrots".into(),
             food: "carrots".into(),
             thickness_mm: 20.0,
             start_c: 5.0,
+            covered: false,
         },
     ];
     for i in 0..24 {

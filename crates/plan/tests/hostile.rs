@@ -123,6 +123,7 @@ fn grid_layout(cell_mm: f64) -> Plan {
         food: "rice".into(),
         thickness_mm: 20.0,
         start_c: 5.0,
+        covered: false,
     }];
     p.food = vec![1; 12];
     p.oven.configs = 1;
@@ -242,6 +243,7 @@ fn random_plan() -> impl Strategy<Value = Plan> {
                         food: foods[f].into(),
                         thickness_mm: thickness,
                         start_c: start,
+                        covered: false,
                     })
                     .collect();
                 p.zones = vec![Zone {

@@ -30,6 +30,7 @@ fn plan_strategy() -> impl Strategy<Value = Plan> {
                     food: ids[k].into(),
                     thickness_mm: 10.0 + k as f64,
                     start_c: 4.0 - k as f64,
+                    covered: false,
                 })
                 .collect();
             p.zones = (0..nz)
@@ -174,6 +175,7 @@ fn chicken_on_kitchen() -> Plan {
         food: "chicken-breast".into(),
         thickness_mm: 20.0,
         start_c: 4.0,
+        covered: false,
     }];
     plan.food = vec![1, 1, 0, 1, 1, 0];
     plan.oven.configs = 2;
@@ -388,31 +390,39 @@ fn heating_from_below_travels_and_is_checked() {
     );
 }
 
-/// The tray's heat capacity travels in files and links; a version-3 link made before it (no
-/// extension after the trailer) still reads, with no tray capacity; a negative one is refused at
-/// its field.
+/// Version 4 carries the tray's heat capacity and whether each item is covered, in files and
+/// links; version-3 files and `tc3.` links (fixtures written by the command line before version
+/// 4) still open, uncovered and with no tray capacity; a negative capacity is refused at its
+/// field.
 #[test]
-fn tray_capacity_travels_and_older_links_still_read() {
-    use base64::Engine;
+fn tray_capacity_and_covers_travel_and_older_plans_still_open() {
     let mut plan = demos::demo("side-by-side").unwrap();
     plan.heating.tray_capacity = 1400.0;
+    plan.items[0].covered = true;
     let json = wire::to_json(&plan);
+    assert!(json.contains("\"covered\": true"), "{json}");
     assert_eq!(wire::from_json(&json).unwrap(), plan);
     let link = wire::to_link(&plan);
+    assert!(link.starts_with("tc4."));
     assert_eq!(wire::from_link(&link).unwrap(), plan);
-    // The same link as the previous release wrote it: without the 8-byte extension.
-    let b64 = base64::engine::general_purpose::URL_SAFE_NO_PAD;
-    let packed = b64.decode(link.strip_prefix("tc3.").unwrap()).unwrap();
-    let bytes = miniz_oxide::inflate::decompress_to_vec(&packed).unwrap();
-    let older = miniz_oxide::deflate::compress_to_vec(&bytes[..bytes.len() - 8], 9);
-    let read = wire::from_link(&format!("tc3.{}", b64.encode(older))).unwrap();
-    assert_eq!(read.heating.tray_capacity, 0.0);
-    assert_eq!(read.heating.from_below, plan.heating.from_below);
     let bad = json.replace("\"tray_capacity\": 1400.0", "\"tray_capacity\": -1.0");
     assert_eq!(
         wire::from_json(&bad).unwrap_err().place,
         Place::from("heating.tray_capacity")
     );
+    let fixture = |name: &str| {
+        std::fs::read_to_string(format!(
+            "{}/../../tests/fixtures/plans/{name}",
+            env!("CARGO_MANIFEST_DIR")
+        ))
+        .unwrap()
+    };
+    let v3_file = wire::from_json(&fixture("side-by-side-v3.json")).unwrap();
+    let v3_link = wire::from_link(fixture("side-by-side-v3.link").trim()).unwrap();
+    assert_eq!(v3_file, v3_link);
+    assert_eq!(v3_file.heating.from_below, 0.25);
+    assert_eq!(v3_file.heating.tray_capacity, 0.0);
+    assert!(v3_file.items.iter().all(|i| !i.covered));
 }
 
 /// The plan names its library: a library of another name is refused, never solved on silently;
@@ -483,6 +493,7 @@ fn water_load_absorbs_the_rated_power() {
         food: "water".into(),
         thickness_mm: depth_mm,
         start_c: 10.0,
+        covered: false,
     }];
     let mut cells = 0;
     for i in 0..w * h {

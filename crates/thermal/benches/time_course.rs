@@ -29,6 +29,7 @@ fn bench(c: &mut Criterion) {
             Some(CellFill {
                 item,
                 thickness: 0.02,
+                covered: true,
             })
         })
         .collect();

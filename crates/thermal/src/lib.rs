@@ -25,7 +25,7 @@
 //! // One 2 cm × 2 cm × 2 cm cell of chicken at 5 °C, heated at 0.5 K/s for 60 s, then standing.
 //! let food = catalogue::find("chicken-breast").unwrap();
 //! let items = [Material::food(&food.composition()).unwrap()];
-//! let cells = [Some(CellFill { item: 0, thickness: 0.02 })];
+//! let cells = [Some(CellFill { item: 0, thickness: 0.02, covered: true })];
 //! let load = Load { tray: Tray { width: 1, height: 1, cell_size: 0.02 }, items: &items, cells: &cells, start: &[5.0] };
 //! let maps = Maps { configs: 1, rates: &[0.5] };
 //! let course = simulate(&load, &maps, &Schedule::blocks(&[60.0]), &Settings::default()).unwrap();

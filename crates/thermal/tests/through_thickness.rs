@@ -20,7 +20,11 @@ fn column(
     settings: Settings,
 ) -> TimeCourse {
     let items = [mat.clone()];
-    let cells = [Some(CellFill { item: 0, thickness })];
+    let cells = [Some(CellFill {
+        item: 0,
+        thickness,
+        covered: true,
+    })];
     let load = Load {
         tray: Tray {
             width: 1,
@@ -251,7 +255,11 @@ fn a_slab_thaws_in_about_planks_time() {
         ..Settings::default()
     };
     let items = [mat.clone()];
-    let cells = [Some(CellFill { item: 0, thickness })];
+    let cells = [Some(CellFill {
+        item: 0,
+        thickness,
+        covered: true,
+    })];
     let load = Load {
         tray: Tray {
             width: 1,
@@ -328,4 +336,57 @@ fn a_tray_plate_takes_its_share_of_the_heat() {
         run(plate),
         run(0.0)
     );
+}
+
+/// Evaporation against psychrometry. Saturation pressure against the steam tables (IAPWS-IF97:
+/// 2.339 kPa at 20 °C, 19.946 kPa at 60 °C; values recalled from memory). And an uncovered thin
+/// layer of water left in still air at 25 °C and 50 % relative humidity cools to the wet-bulb
+/// temperature, 17.9 °C on the psychrometric chart (ASHRAE Fundamentals; recalled from memory),
+/// within 1 K; covered, it stays at 25 °C.
+#[test]
+fn an_uncovered_wet_surface_settles_at_the_wet_bulb_temperature() {
+    use traycast_thermal::simulate::evaporation::saturation_pressure;
+    for (t, kpa) in [(20.0, 2.339), (60.0, 19.946)] {
+        let got = saturation_pressure(t) / 1000.0;
+        assert!((got - kpa).abs() / kpa < 0.01, "{t} °C: {got} kPa");
+    }
+    let water = catalogue::find("water").unwrap();
+    let mat = Material::food(&water.composition()).unwrap();
+    let run = |covered: bool| {
+        let items = [mat.clone()];
+        let cells = [Some(CellFill {
+            item: 0,
+            thickness: 0.004,
+            covered,
+        })];
+        let load = Load {
+            tray: Tray {
+                width: 1,
+                height: 1,
+                cell_size: 0.02,
+            },
+            items: &items,
+            cells: &cells,
+            start: &[25.0],
+        };
+        let settings = Settings {
+            air: 25.0,
+            air_humidity: 0.5,
+            standing: 4.0 * 3600.0,
+            record_every: 600.0,
+            ..Settings::default()
+        };
+        let maps = Maps {
+            configs: 1,
+            rates: &[0.0],
+        };
+        simulate(&load, &maps, &Schedule::default(), &settings).unwrap()
+    };
+    let open = run(false);
+    let t = open.after_standing[0];
+    assert!((t - 17.9).abs() < 1.0, "uncovered: {t} °C");
+    assert!(open.moisture_loss[0] > 0.0);
+    let covered = run(true);
+    assert!((covered.after_standing[0] - 25.0).abs() < 1e-6);
+    assert_eq!(covered.moisture_loss[0], 0.0);
 }

@@ -40,7 +40,8 @@ fn run_rod(
     let fill = vec![
         Some(CellFill {
             item: 0,
-            thickness: dx
+            thickness: dx,
+            covered: true,
         });
         cells
     ];
@@ -144,6 +145,7 @@ fn single_cell(
     let cells = [Some(CellFill {
         item: 0,
         thickness: side,
+        covered: true,
     })];
     let load = Load {
         tray: Tray {
@@ -221,6 +223,7 @@ fn energy_is_conserved_without_sources() {
                 Some(CellFill {
                     item: (i % w < 3) as usize,
                     thickness: 0.01 + 0.002 * (i % 3) as f64,
+                    covered: true,
                 })
             }
         })
@@ -374,7 +377,8 @@ fn rounds_spread_heat_more_evenly_than_blocks() {
     let cells = vec![
         Some(CellFill {
             item: 0,
-            thickness: 0.01
+            thickness: 0.01,
+            covered: true,
         });
         w
     ];
@@ -421,6 +425,7 @@ fn bad_inputs_are_typed_errors() {
     let cells = [Some(CellFill {
         item: 0,
         thickness: 0.0,
+        covered: true,
     })];
     let load = Load {
         tray: Tray {
@@ -444,6 +449,7 @@ fn bad_inputs_are_typed_errors() {
     let cells = [Some(CellFill {
         item: 0,
         thickness: 0.01,
+        covered: true,
     })];
     let load = Load {
         cells: &cells,

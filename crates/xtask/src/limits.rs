@@ -28,6 +28,7 @@ fn rice_tray(width: usize, height: usize, configs: usize) -> Plan {
         food: "rice".into(),
         thickness_mm: 20.0,
         start_c: 5.0,
+        covered: false,
     }];
     plan.food = vec![1; width * height];
     plan.oven.configs = configs;

@@ -44,6 +44,7 @@ pub(crate) fn simulate_load(
             plan.item_at(i).map(|k| CellFill {
                 item: k,
                 thickness: plan.items[k].thickness_mm / 1000.0,
+                covered: plan.items[k].covered,
             })
         })
         .collect();
@@ -87,7 +88,21 @@ pub(super) fn course_warnings(
 ) -> Vec<String> {
     let mut out = Vec::new();
     let width = plan.tray.width;
-    for (item, cells) in plan.items.iter().zip(prep.item_cells()) {
+    for (k, (item, cells)) in plan.items.iter().zip(prep.item_cells()).enumerate() {
+        // The Food Code's microwave rule for raw animal foods asks for a cover (3-401.12(B)).
+        let raw_animal = plan.catalogue_food(k).is_some_and(|f| {
+            use traycast_thermal::safety::SafetyCategory as S;
+            matches!(
+                f.safety,
+                S::Poultry | S::GroundMeat | S::WholeMeat | S::Fish | S::EggDish
+            )
+        });
+        if raw_animal && !item.covered && !cells.is_empty() {
+            out.push(format!(
+                "'{}' is not covered: the FDA Food Code asks raw animal foods cooked in a microwave to be covered to keep their surface moist (3-401.12(B)); the simulation lets it lose water and cool at its surface",
+                item.name
+            ));
+        }
         // Where the preview and the simulation disagree, and the worst cell.
         let gaps: Vec<(usize, f64)> = cells
             .iter()

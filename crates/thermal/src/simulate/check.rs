@@ -128,6 +128,13 @@ pub(super) fn validate(
         "0 to 1",
     )?;
     in_range(
+        "cavity air relative humidity",
+        settings.air_humidity,
+        0.0,
+        1.0,
+        "0 to 1",
+    )?;
+    in_range(
         "tray heat capacity (J/(m²·K))",
         settings.tray_capacity,
         0.0,

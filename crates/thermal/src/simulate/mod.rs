@@ -31,7 +31,8 @@
 //!   resistances Δz/(2k)), and between layers of side-by-side cells that overlap in height (area
 //!   Δx × overlap, half-cell resistances Δx/(2k), plus 1/h_c between different food items).
 //! - **Surface loss.** The top layer loses h·(T − T_air) (h ≈ 10 W/(m²·K): air nearly still, an
-//!   assumption; no citable in-oven value exists).
+//!   assumption; no citable in-oven value exists), and, where the food is not covered, the latent
+//!   heat of the water that evaporates from it below boiling ([`evaporation`]).
 //! - **Tray bottom.** Insulated, or a plate with a heat capacity per area
 //!   ([`Settings::tray_capacity`]) under each cell, exchanging heat with the bottom layer through
 //!   the contact conductance; the plate takes no microwave power and does not spread heat
@@ -45,6 +46,7 @@
 
 mod check;
 pub mod column;
+pub mod evaporation;
 mod model;
 mod record;
 
@@ -84,6 +86,9 @@ pub struct CellFill {
     pub item: usize,
     /// Food thickness in this cell, m.
     pub thickness: f64,
+    /// A cover over the food: it keeps the moisture in (no evaporation below boiling), as the
+    /// FDA Food Code asks for microwave cooking (3-401.12(B)).
+    pub covered: bool,
 }
 
 /// The tray's outer edges: left/right (`x`) and top/bottom (`y`) of the grid.
@@ -142,13 +147,17 @@ pub struct Settings {
     /// tray is about 1 400 (900 kg/m³ × 1.9 kJ/(kg·K) × 0.8 mm, typical handbook values recalled
     /// from memory).
     pub tray_capacity: f64,
+    /// Relative humidity of the cavity air (0 to 1): drives evaporation from uncovered food.
+    pub air_humidity: f64,
 }
 
 impl Default for Settings {
     /// h = 10 W/(m²·K), contact 200 W/(m²·K) (assumed), air 25 °C, standing 120 s (FDA Food Code
     /// 3-401.12), 4 s steps (the configurations' power averaged within each; split where stability
     /// asks), a frame every 5 s, insulated edges, layers at most 4 mm, all power entering from
-    /// the top, and an insulated tray bottom that stores no heat. Top-only entry is the conservative assumption for the coldest point
+    /// the top, an insulated tray bottom that stores no heat, and cavity air at 50 % relative
+    /// humidity (an assumption: room air; steam from the food raises it during heating, which
+    /// would slow evaporation, so 50 % errs towards a cooler surface). Top-only entry is the conservative assumption for the coldest point
     /// (heated from one face, a thick piece's far side stays coldest); a common-practice default
     /// until the tray's share is known, not a measured value.
     fn default() -> Self {
@@ -164,6 +173,7 @@ impl Default for Settings {
             max_layer: 0.004,
             bottom_entry: 0.0,
             tray_capacity: 0.0,
+            air_humidity: 0.5,
         }
     }
 }

@@ -2,6 +2,7 @@
 //! explicit step that moves energy between them.
 
 use super::column::{deposit, layer_count, layer_span, overlap};
+use super::evaporation;
 use super::{Edge, Load, Maps, Settings};
 use crate::composition::{BOILING_POINT, LATENT_VAPORISATION};
 use crate::material::{Material, REFERENCE_C};
@@ -54,6 +55,8 @@ pub(super) struct Model<'a> {
     edge_temp: Vec<f64>,
     /// Per node: 1 for the top layer (which loses heat to the cavity air), else 0.
     top: Vec<f64>,
+    /// Per node: the top layer of an uncovered cell, which loses water below boiling.
+    open: Vec<bool>,
     flux: Vec<f64>,
     cond: Vec<f64>,
     gsum: Vec<f64>,
@@ -107,6 +110,7 @@ impl<'a> Model<'a> {
             edge_area: vec![],
             edge_temp: vec![],
             top: vec![],
+            open: vec![],
             flux: vec![],
             cond: vec![],
             gsum: vec![],
@@ -148,6 +152,7 @@ impl<'a> Model<'a> {
                 m.energy.push(mat.enthalpy(load.start[i]) * mass);
                 m.water_left.push(mat.water * mass);
                 m.top.push(if l == 0 { 1.0 } else { 0.0 });
+                m.open.push(l == 0 && !c.covered);
                 m.capacity.push(mat.min_heat_capacity * 1000.0);
             }
         }
@@ -427,6 +432,24 @@ impl<'a> Model<'a> {
                 q += self.power[i];
             }
             self.energy[i] += dt * q / 1000.0;
+            // Evaporation below boiling from an uncovered surface: the water leaves with its
+            // enthalpy and takes its latent heat.
+            if self.open[i] && self.water_left[i] > 0.0 && self.temp[i] < BOILING_POINT {
+                let s = &self.settings;
+                let flux = evaporation::flux(s.surface_h, self.temp[i], s.air, s.air_humidity);
+                let d = (dt * flux * dx * dx).min(self.water_left[i]);
+                let specific = self.energy[i] / self.mass[i];
+                self.energy[i] -= d * (specific + evaporation::latent_heat(self.temp[i]));
+                self.mass[i] -= d;
+                self.water_left[i] -= d;
+                self.evaporated[i] += d;
+                if self.mass[i] <= 1e-9 * self.mass0[i] {
+                    self.mass[i] = 0.0;
+                    self.energy[i] = 0.0;
+                    dried = true;
+                    continue;
+                }
+            }
             // Boiling: the enthalpy above the boiling point leaves as vapour.
             let h_boil = mat.boiling_enthalpy();
             if self.water_left[i] > 0.0 && self.energy[i] > h_boil * self.mass[i] {
