@@ -21,12 +21,14 @@ fn layout(head: &[u8]) -> (Plan, ReadOptions) {
             food: "lasagne".into(),
             thickness_mm: 20.0,
             start_c: -18.0,
+            covered: false,
         },
         FoodItem {
             name: "b".into(),
             food: "carrots".into(),
             thickness_mm: 10.0,
             start_c: 5.0,
+            covered: true,
         },
     ];
     plan.oven.configs = 1 + head[3] as usize % 4;
