@@ -284,6 +284,23 @@ await test('°C/°F toggle converts displayed values by F = C·9/5 + 32', async 
   await page.screenshot({ path: join(ART, 'workbench-fahrenheit.png'), fullPage: true });
 });
 
+await test('the simulated map shows the point of each cell the user picks, and says which', async ({ page }) => {
+  await open(page);
+  const caption = () => page.locator('#map-simulated').locator('xpath=..').locator('figcaption').textContent();
+  const pixels = () => page.evaluate(() => document.querySelector('#map-simulated').toDataURL());
+  assert(/coldest point/.test(await caption()), 'coldest point by default: ' + (await caption()));
+  const coldest = await pixels();
+  await page.selectOption('#sim-view', 'surface');
+  await page.waitForTimeout(200);
+  assert(/surface/.test(await caption()), 'says surface: ' + (await caption()));
+  assert((await pixels()) !== coldest, 'the surface map differs from the coldest-point map');
+  await page.selectOption('#sim-view', 'depth');
+  await page.locator('#sim-depth').fill('4');
+  await page.locator('#sim-depth').press('Enter');
+  await page.waitForTimeout(200);
+  assert(/4 mm below the top/.test(await caption()), 'says the depth: ' + (await caption()));
+});
+
 await browser.close();
 const passed = results.filter((r) => r[1]).length;
 const failed = results.length - passed;

@@ -2,6 +2,7 @@
 
 use crate::draw;
 use crate::paint::{Tool, paint};
+use crate::simview::{SimView, SimViewPicker};
 use crate::storage;
 use crate::surface;
 use crate::units::Unit;
@@ -103,6 +104,8 @@ pub fn App() -> impl IntoView {
     let plan = RwSignal::new(start.plan);
     let notice = RwSignal::new(start.message);
     let unit = RwSignal::new(Unit::Celsius);
+    let sim_view = RwSignal::new(SimView::Coldest);
+    let sim_depth = RwSignal::new(10.0f64);
     let tool = RwSignal::new(Tool::Food(0));
     let brush = RwSignal::new(1usize);
     let rect = RwSignal::new(false);
@@ -210,6 +213,7 @@ pub fn App() -> impl IntoView {
     Effect::new(move |_| {
         let p = plan.get_untracked();
         let u = unit.get();
+        let (view, depth) = (sim_view.get(), sim_depth.get());
         eval.with(|e| {
             // The evaluation may still describe an earlier plan (another tray size): skip it then.
             if let Some(Ok(e)) = e
@@ -218,14 +222,9 @@ pub fn App() -> impl IntoView {
             {
                 let hp = draw::cell_px(&p, 300.0);
                 if let Some(c) = sim_ref.get() {
-                    let temps: Vec<f64> = e
-                        .course
-                        .after_standing
-                        .iter()
-                        .enumerate()
-                        .map(|(i, t)| if p.food[i] > 0 { *t } else { f64::NAN })
-                        .collect();
-                    draw::heatmap(&c, &p, &temps, hp, false, u, "simulated after standing");
+                    let temps = view.temps(&e.course, depth, &p.food);
+                    let title = format!("simulated {} after standing", view.caption(depth));
+                    draw::heatmap(&c, &p, &temps, hp, false, u, &title);
                 }
                 if let Some(c) = course_ref.get() {
                     draw::time_course(&c, &p, e, u);
@@ -659,7 +658,7 @@ pub fn App() -> impl IntoView {
                 <p class="hover" id="hover">{hover_text}</p>
                 <div class="maps">
                     <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=lin_ref></canvas><button class="small" on:click=png(lin_ref, "linear.png")>"PNG"</button></figure>
-                    <figure><figcaption>{move || format!("Simulated coldest point of each cell, after standing ({})", unit.get().symbol())}</figcaption><canvas id="map-simulated" node_ref=sim_ref></canvas><button class="small" on:click=png(sim_ref, "simulated.png")>"PNG"</button></figure>
+                    <figure><figcaption>{move || format!("Simulated {} of each cell, after standing ({})", sim_view.get().caption(sim_depth.get()), unit.get().symbol())}</figcaption><SimViewPicker view=sim_view depth_mm=sim_depth /><canvas id="map-simulated" node_ref=sim_ref></canvas><button class="small" on:click=png(sim_ref, "simulated.png")>"PNG"</button></figure>
                     <figure><figcaption>"Off band (linear prediction): blue too cold, red too hot"</figcaption><canvas id="map-error" node_ref=err_ref></canvas><button class="small" on:click=png(err_ref, "error.png")>"PNG"</button></figure>
                 </div>
             </section>

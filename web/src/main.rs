@@ -6,6 +6,7 @@
 mod app;
 mod draw;
 mod paint;
+mod simview;
 mod storage;
 mod surface;
 mod units;

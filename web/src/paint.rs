@@ -74,6 +74,7 @@ mod tests {
             food: "rice".into(),
             thickness_mm: 10.0,
             start_c: 4.0,
+            covered: false,
         });
         assert!(paint(&mut p, Tool::Food(0), 0, 0, 3));
         // A 3-wide brush at the corner covers the 2 × 2 cells inside the tray.
@@ -92,6 +93,7 @@ mod tests {
             food: "rice".into(),
             thickness_mm: 10.0,
             start_c: 4.0,
+            covered: false,
         });
         p.zones.push(traycast_plan::model::Zone {
             name: "z".into(),

@@ -390,3 +390,20 @@ fn an_uncovered_wet_surface_settles_at_the_wet_bulb_temperature() {
     assert!((covered.after_standing[0] - 25.0).abs() < 1e-6);
     assert_eq!(covered.moisture_loss[0], 0.0);
 }
+
+/// Any layer can be read back by depth: the top is the surface, the coldest point is the coldest
+/// layer, and depths outside the food are not a temperature.
+#[test]
+fn layers_can_be_read_at_any_depth() {
+    let food = catalogue::find("chicken-breast").unwrap();
+    let mat = Material::food(&food.composition()).unwrap();
+    let course = column(&mat, 0.03, 5.0, 0.2, 200.0, Settings::default());
+    let layers = &course.layers_after_standing[0];
+    assert_eq!(layers.len(), course.layers[0]);
+    assert_eq!(course.at_depth(0, 0.0), course.surface_after_standing[0]);
+    let coldest = layers.iter().copied().fold(f64::INFINITY, f64::min);
+    assert_eq!(coldest, course.after_standing[0]);
+    assert_eq!(course.at_depth(0, course.coldest_depth[0]), coldest);
+    assert_eq!(course.at_depth(0, 0.0299), *layers.last().unwrap());
+    assert!(course.at_depth(0, 0.031).is_nan() && course.at_depth(0, -0.001).is_nan());
+}

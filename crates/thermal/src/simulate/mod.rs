@@ -255,6 +255,10 @@ pub struct TimeCourse {
     pub energy_after_standing: Vec<f64>,
     /// Layers each cell was cut into (0 for empty cells).
     pub layers: Vec<usize>,
+    /// Each cell's layers after the standing time, top first, °C (empty for empty cells).
+    pub layers_after_standing: Vec<Vec<f64>>,
+    /// Thickness of each cell's layers, m (NaN for empty cells).
+    pub layer_thickness: Vec<f64>,
     /// Water evaporated per cell, kg.
     pub moisture_loss: Vec<f64>,
     /// Water evaporated per item, kg.
@@ -268,6 +272,21 @@ pub struct TimeCourse {
     pub heating_seconds: f64,
     /// Standing time, s.
     pub standing_seconds: f64,
+}
+
+impl TimeCourse {
+    /// Temperature after the standing time at `depth` (m) below the top face of `cell`: the layer
+    /// holding that depth. NaN for an empty cell or a depth outside the food.
+    pub fn at_depth(&self, cell: usize, depth: f64) -> f64 {
+        let (layers, dz) = (
+            &self.layers_after_standing[cell],
+            self.layer_thickness[cell],
+        );
+        if layers.is_empty() || depth.is_nan() || depth < 0.0 || depth > dz * layers.len() as f64 {
+            return f64::NAN;
+        }
+        layers[((depth / dz) as usize).min(layers.len() - 1)]
+    }
 }
 
 /// Simulates `schedule` then the standing time on `load` heated by `maps`.
@@ -332,8 +351,12 @@ pub fn simulate(
     let n = load.tray.cells();
     let mut item_moisture_loss = vec![0.0; load.items.len()];
     let (mut moisture_loss, mut boiled_dry) = (vec![0.0; n], vec![false; n]);
+    let mut layers_after_standing = vec![Vec::new(); n];
+    let mut layer_thickness = vec![f64::NAN; n];
     for &i in &model.filled {
         let nodes = model.nodes(i);
+        layers_after_standing[i] = model.temp[nodes.clone()].to_vec();
+        layer_thickness[i] = model.dz[nodes.start];
         moisture_loss[i] = model.evaporated[nodes.clone()].iter().sum();
         boiled_dry[i] = model.boiled_dry[nodes].iter().all(|&b| b);
         item_moisture_loss[load.cells[i].expect("filled").item] += moisture_loss[i];
@@ -353,6 +376,8 @@ pub fn simulate(
         surface_after_standing: last.surface,
         energy_after_standing: last.energy,
         layers: model.layers.clone(),
+        layers_after_standing,
+        layer_thickness,
         moisture_loss,
         item_moisture_loss,
         boiled_dry,
