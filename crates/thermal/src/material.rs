@@ -80,6 +80,8 @@ struct Row {
     mu: f64,
     /// Share of incident power entering through a face.
     transmit: f64,
+    /// 1 / (next row's h − h): interpolation by a multiplication (0 on a plateau and at the end).
+    inv_span: f64,
 }
 
 /// What the food does to microwave power at one state.
@@ -151,6 +153,7 @@ impl Material {
                 k: p.conductivity,
                 mu: (1.0 / e.penetration_depth()).max(MIN_ATTENUATION),
                 transmit: e.transmission(),
+                inv_span: 0.0,
             }
         };
         // A 0.5 K grid where the properties are smooth (deep frozen, and thawed), 0.1 K in the
@@ -185,6 +188,10 @@ impl Material {
                 push(row(comp.freezing_point, 0.0));
             }
             push(row(tt, ice_at(tt)));
+        }
+        for j in 0..rows.len().saturating_sub(1) {
+            let span = rows[j + 1].h - rows[j].h;
+            rows[j].inv_span = if span > 0.0 { 1.0 / span } else { 0.0 };
         }
         let min_heat_capacity = rows
             .windows(2)
@@ -373,12 +380,7 @@ impl Material {
                 let i = lo.min(top);
                 *hint = i;
                 let (a, b) = (rows[i], rows[i + 1]);
-                let span = b.h - a.h;
-                let f = if span > 0.0 {
-                    ((hv - a.h) / span).clamp(0.0, 1.0)
-                } else {
-                    0.0
-                };
+                let f = ((hv - a.h) * a.inv_span).clamp(0.0, 1.0);
                 State {
                     t: a.t + f * (b.t - a.t),
                     k: a.k + f * (b.k - a.k),

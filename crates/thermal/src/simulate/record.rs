@@ -66,13 +66,30 @@ impl Columns {
         v
     }
 
-    /// The view asked for.
-    fn into_view(self, view: View) -> Vec<f64> {
-        match view {
-            View::Coldest => self.coldest,
-            View::Mean => self.mean,
-            View::Surface => self.surface,
+    /// Only the view asked for (what each frame records), without the rest of [`Columns::of`].
+    fn view_of(m: &Model, view: View) -> Vec<f64> {
+        let mut out = vec![f64::NAN; m.load.tray.cells()];
+        for &i in &m.filled {
+            let nodes = m.nodes(i);
+            out[i] = match view {
+                View::Surface => m.temp[nodes.start],
+                View::Coldest => m.temp[nodes].iter().copied().fold(f64::INFINITY, f64::min),
+                View::Mean => {
+                    let (mut sum, mut mass) = (0.0, 0.0);
+                    for node in nodes {
+                        sum += m.temp[node] * m.mass[node];
+                        mass += m.mass[node];
+                    }
+                    // A column that boiled away entirely holds at the boiling point.
+                    if mass > 0.0 {
+                        sum / mass
+                    } else {
+                        BOILING_POINT
+                    }
+                }
+            };
         }
+        out
     }
 }
 
@@ -99,7 +116,7 @@ impl Recorder {
 
     pub fn record(&mut self, t: f64, m: &Model) {
         self.times.push(t);
-        self.frames.push(Columns::of(m).into_view(self.view));
+        self.frames.push(Columns::view_of(m, self.view));
         let k = self.items.len();
         let (mut lo, mut hi) = (vec![f64::INFINITY; k], vec![f64::NEG_INFINITY; k]);
         let (mut sum, mut mass) = (vec![0.0; k], vec![0.0; k]);
