@@ -408,7 +408,8 @@ pub fn App() -> impl IntoView {
                 let items = p.items.iter().zip(&e.items).map(|(it, s)| {
                     let v = &s.verdict;
                     let on = if s.spread.is_some() { " at the lower bound" } else { "" };
-                    let verdict = if !v.margin.is_finite() { "FAILS: no temperature to judge".to_string() } else if v.safe { format!("meets{on}, +{:.1}", u.diff(v.margin)) } else { format!("FAILS{on}, {:.1}", u.diff(v.margin)) };
+                    let words = traycast_plan::evaluate::verdict_words(v, e.illustrative());
+                    let verdict = if v.margin.is_finite() { format!("{words}{on} ({:+.1} {})", u.diff(v.margin), u.diff_symbol()) } else { words };
                     let range = |r: (f64, f64)| format!("{:.1}–{:.1} {}", u.temp(r.0), u.temp(r.1), u.symbol());
                     let spread = s.spread.as_ref().map(|sp| view! {
                         <td class="spread" title="95 % from the maps' rate errors">{range(sp.coldest)}</td>
@@ -434,7 +435,7 @@ pub fn App() -> impl IntoView {
                 view! {
                     <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
                     <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"verdict (coldest point)"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
-                    <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", if u == Unit::Celsius { "K" } else { "°F" })}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
+                    <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", u.diff_symbol())}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
                     <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
                     <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>
                 }.into_any()

@@ -42,6 +42,14 @@ impl Unit {
         }
     }
 
+    /// Symbol for temperature differences (margins): K, or °F of difference.
+    pub fn diff_symbol(self) -> &'static str {
+        match self {
+            Unit::Celsius => "K",
+            Unit::Fahrenheit => "°F",
+        }
+    }
+
     /// Formats a temperature with one decimal (an em dash for missing values).
     pub fn fmt(self, c: f64) -> String {
         if c.is_finite() {

@@ -121,26 +121,21 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
     }
     let _ = writeln!(
         s,
-        "\n{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  rule",
-        "food item (°C after standing)", "coldest", "mean", "hottest", "verdict", "margin K"
+        "\n{:<28} {:>7} {:>7} {:>7}  {:>8}  rule",
+        "food item (°C after standing)", "coldest", "mean", "hottest", "margin K"
     );
     for (it, r) in plan.items.iter().zip(&e.items) {
         let v = &r.verdict;
         let _ = writeln!(
             s,
-            "{:<28} {:>7} {:>7} {:>7}  {:<8} {:>8}  {}{}",
+            "{:<28} {:>7} {:>7} {:>7}  {:>8}  {}\n    verdict: {}",
             it.name,
             num(r.min, 1),
             num(r.mean, 1),
             num(r.max, 1),
-            if v.safe { "meets" } else { "FAILS" },
             num(v.margin, 1),
             v.binding.source,
-            if v.short_stand {
-                " (standing shorter than the rule assumes)"
-            } else {
-                ""
-            }
+            traycast_plan::evaluate::verdict_words(v, e.illustrative()),
         );
         if let Some(sp) = &r.spread {
             let _ = writeln!(

@@ -57,6 +57,22 @@ fn zone(name: &str, min_c: f64, max_c: f64, weight: f64, cap_c: Option<f64>) -> 
 
 /// A demo plan by name.
 pub fn demo(name: &str) -> Option<Plan> {
+    let mut p = demo_plan(name)?;
+    cover_where_the_rules_ask(&mut p);
+    Some(p)
+}
+
+/// Covers every item whose safety rules ask for a cover (the microwave rules of the FDA Food
+/// Code), as a careful practitioner would.
+fn cover_where_the_rules_ask(p: &mut Plan) {
+    for k in 0..p.items.len() {
+        if let Some(f) = p.catalogue_food(k) {
+            p.items[k].covered = f.safety.requirements().iter().any(|r| r.covered);
+        }
+    }
+}
+
+fn demo_plan(name: &str) -> Option<Plan> {
     Some(match name {
         "lunch-tray" => {
             // Four compartments on a 28 × 18 cm tray: chicken that must reach its safe minimum,
@@ -73,7 +89,8 @@ pub fn demo(name: &str) -> Option<Plan> {
                 zone("Chicken 85–98 °C", 85.0, 98.0, 3.0, None),
                 zone("Rice 82–96 °C", 82.0, 96.0, 1.0, None),
                 zone("Broccoli 65–75 °C", 65.0, 75.0, 1.0, None),
-                zone("Pudding stays cool", -40.0, 10.0, 0.2, None),
+                // Cold holding asks for 5 °C or less (FDA Food Code 3-501.16(A)(2)).
+                zone("Pudding stays at most 5 °C", -40.0, 5.0, 0.2, None),
             ];
             paint(&mut p, 1, 1, 1..13, 1..9);
             paint(&mut p, 2, 2, 15..27, 1..9);
@@ -82,8 +99,6 @@ pub fn demo(name: &str) -> Option<Plan> {
             // An illustrative tray that lets microwaves through its base (glass, ceramic or
             // plastic): half of each cell's power enters from below.
             p.heating.from_below = 0.5;
-            // The raw chicken is covered, as the Food Code asks for microwave cooking.
-            p.items[0].covered = true;
             p
         }
         "frozen-portion" => {

@@ -3,8 +3,14 @@
 //! Sources (transcribed in shared/reference/physics.md §2):
 //! - USDA FSIS / FoodSafety.gov "Safe Minimum Internal Temperatures" consumer chart; °C by FSIS's
 //!   rule °C = (°F − 32)·5/9 to one decimal.
-//! - FDA Food Code (2009/2013/2017 editions, section numbers as confirmed through state adoptions):
-//!   3-401.11 cooking, 3-401.12 microwave cooking, 3-403.11 reheating, 3-501.16 holding.
+//! - FDA Food Code, 2022 edition: 3-401.11 cooking, 3-401.12 microwave cooking, 3-401.13 plant
+//!   foods cooked for hot holding, 3-403.11 reheating, 3-501.16 holding. The section numbers were
+//!   confirmed through state adoptions of the 2009–2017 editions; that the 2022 edition keeps them
+//!   is recalled from memory.
+//!
+//! A rule is met only when its procedure is too: the microwave rules ask for the food to be covered
+//! and to stand covered for 2 minutes, and a plan that leaves either out is never shown as meeting
+//! them ([`Verdict::missing`] says what is missing).
 //!
 //! These are planning aids. Local food codes and licensed practice govern; verify with a calibrated
 //! thermometer.
@@ -89,6 +95,8 @@ pub struct CodeRule {
     pub minimum: bool,
     /// Required covered standing time after microwave heating, s (0 when none).
     pub stand_seconds: f64,
+    /// The food must be covered while it heats and stands.
+    pub covered: bool,
 }
 
 /// FDA Food Code: microwave cooking of raw animal foods (all parts 74 °C, stand covered 2 min).
@@ -99,6 +107,7 @@ pub const FDA_MICROWAVE_COOKING: CodeRule = CodeRule {
     fahrenheit: 165.0,
     minimum: true,
     stand_seconds: 120.0,
+    covered: true,
 };
 /// FDA Food Code: reheating for hot holding in a microwave (all parts 74 °C, stand covered 2 min).
 pub const FDA_MICROWAVE_REHEATING: CodeRule = CodeRule {
@@ -108,6 +117,7 @@ pub const FDA_MICROWAVE_REHEATING: CodeRule = CodeRule {
     fahrenheit: 165.0,
     minimum: true,
     stand_seconds: 120.0,
+    covered: true,
 };
 /// FDA Food Code: commercially processed ready-to-eat food reheated for hot holding.
 pub const FDA_RTE_REHEATING: CodeRule = CodeRule {
@@ -117,6 +127,17 @@ pub const FDA_RTE_REHEATING: CodeRule = CodeRule {
     fahrenheit: 135.0,
     minimum: true,
     stand_seconds: 0.0,
+    covered: false,
+};
+/// FDA Food Code: fruits and vegetables cooked for hot holding.
+pub const FDA_PLANT_FOODS: CodeRule = CodeRule {
+    section: "3-401.13",
+    summary: "fruits and vegetables cooked for hot holding: at least 57 °C (135 °F)",
+    celsius: 57.0,
+    fahrenheit: 135.0,
+    minimum: true,
+    stand_seconds: 0.0,
+    covered: false,
 };
 /// FDA Food Code: hot holding of TCS food.
 pub const FDA_HOT_HOLDING: CodeRule = CodeRule {
@@ -126,6 +147,7 @@ pub const FDA_HOT_HOLDING: CodeRule = CodeRule {
     fahrenheit: 135.0,
     minimum: true,
     stand_seconds: 0.0,
+    covered: false,
 };
 /// FDA Food Code: cold holding of TCS food.
 pub const FDA_COLD_HOLDING: CodeRule = CodeRule {
@@ -135,6 +157,7 @@ pub const FDA_COLD_HOLDING: CodeRule = CodeRule {
     fahrenheit: 41.0,
     minimum: false,
     stand_seconds: 0.0,
+    covered: false,
 };
 
 /// What kind of food a safety judgement applies to.
@@ -154,7 +177,7 @@ pub enum SafetyCategory {
     Reheated,
     /// Precooked ham reheated (FSIS 165 °F; 140 °F if packaged in a USDA-inspected plant).
     PrecookedHam,
-    /// Plant foods and starches served hot: hold at 57 °C or above (FDA 3-501.16).
+    /// Plant foods and starches cooked for hot holding: 57 °C or above (FDA 3-401.13).
     ServedHot,
     /// Chilled items that must stay cold (FDA 3-501.16 cold holding, a maximum).
     KeepCold,
@@ -169,8 +192,10 @@ pub struct Requirement {
     pub celsius: f64,
     /// True: the coldest point must be at least this; false: the warmest point at most this.
     pub minimum: bool,
-    /// Standing or rest time the rule assumes, s.
+    /// Standing or rest time the rule requires, s.
     pub stand_seconds: f64,
+    /// The rule requires the food covered while it heats and stands.
+    pub covered: bool,
 }
 
 fn fsis(row: usize) -> Requirement {
@@ -180,15 +205,17 @@ fn fsis(row: usize) -> Requirement {
         celsius: r.celsius,
         minimum: true,
         stand_seconds: r.rest_minutes * 60.0,
+        covered: false,
     }
 }
 
 fn code(rule: CodeRule) -> Requirement {
     Requirement {
-        source: format!("FDA Food Code {}", rule.section),
+        source: format!("FDA Food Code 2022 {}", rule.section),
         celsius: rule.celsius,
         minimum: rule.minimum,
         stand_seconds: rule.stand_seconds,
+        covered: rule.covered,
     }
 }
 
@@ -216,7 +243,7 @@ impl SafetyCategory {
             SafetyCategory::EggDish => vec![fsis(4), code(FDA_MICROWAVE_COOKING)],
             SafetyCategory::Reheated => vec![fsis(5), code(FDA_MICROWAVE_REHEATING)],
             SafetyCategory::PrecookedHam => vec![fsis(7)],
-            SafetyCategory::ServedHot => vec![code(FDA_HOT_HOLDING)],
+            SafetyCategory::ServedHot => vec![code(FDA_PLANT_FOODS)],
             SafetyCategory::KeepCold => vec![code(FDA_COLD_HOLDING)],
         }
     }
@@ -242,10 +269,19 @@ impl SafetyCategory {
     }
 }
 
+/// How an item was heated and stood: what the procedural parts of a rule are checked against.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Handling {
+    /// Standing time after heating, s.
+    pub stood_seconds: f64,
+    /// Covered while heating and standing.
+    pub covered: bool,
+}
+
 /// The coldest-point verdict for one food item.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Verdict {
-    /// True when every requirement holds.
+    /// True when every requirement holds: its temperature, and its stand and cover.
     pub safe: bool,
     /// The requirement with the smallest margin.
     pub binding: Requirement,
@@ -255,17 +291,19 @@ pub struct Verdict {
     pub coldest: f64,
     /// Warmest point after standing, °C.
     pub warmest: f64,
-    /// True when the simulated standing time is shorter than a rule assumes.
-    pub short_stand: bool,
+    /// What the rules ask for that the plan leaves out, e.g. "stand 2 min covered (plan: 1 min)";
+    /// empty when nothing is. A verdict with anything here is never safe.
+    pub missing: Vec<String>,
 }
 
-/// Judges an item from its cells' temperatures after standing (°C) and the standing time simulated.
-pub fn verdict(category: SafetyCategory, after_standing: &[f64], stood_seconds: f64) -> Verdict {
-    verdict_within(category, after_standing, after_standing, stood_seconds)
+/// Judges an item from its cells' temperatures after standing (°C) and how it was handled.
+pub fn verdict(category: SafetyCategory, after_standing: &[f64], handling: Handling) -> Verdict {
+    verdict_within(category, after_standing, after_standing, handling)
 }
 
 /// Judges an item whose cell temperatures are only known within bounds: minimum requirements are
-/// checked on the coldest lower bound, maximum requirements on the warmest upper bound.
+/// checked on the coldest lower bound, maximum requirements on the warmest upper bound; the stand
+/// and cover each rule asks for must be in the plan too.
 ///
 /// No temperatures, or any that is not a finite number, can never be judged safe: the verdict then
 /// fails with a NaN margin (shown as "no value"), rather than judging the cells that are left.
@@ -273,7 +311,7 @@ pub fn verdict_within(
     category: SafetyCategory,
     lower: &[f64],
     upper: &[f64],
-    stood_seconds: f64,
+    handling: Handling,
 ) -> Verdict {
     let judgeable =
         !lower.is_empty() && !upper.is_empty() && lower.iter().chain(upper).all(|v| v.is_finite());
@@ -299,13 +337,36 @@ pub fn verdict_within(
         .expect("every category has a requirement")
         .clone();
     let margin = margin_of(&binding);
+    let mut missing = Vec::new();
+    let stand = reqs.iter().map(|r| r.stand_seconds).fold(0.0, f64::max);
+    let cover = reqs.iter().any(|r| r.covered);
+    if cover && !handling.covered {
+        missing.push("cover the food while it heats and stands".to_string());
+    }
+    if stand > handling.stood_seconds {
+        missing.push(format!(
+            "stand {}{} (plan: {})",
+            minutes(stand),
+            if cover { " covered" } else { "" },
+            minutes(handling.stood_seconds)
+        ));
+    }
     Verdict {
-        safe: margin >= 0.0 && margin.is_finite(),
-        short_stand: reqs.iter().any(|r| r.stand_seconds > stood_seconds),
+        safe: margin >= 0.0 && margin.is_finite() && missing.is_empty(),
         binding,
         margin,
         coldest,
         warmest,
+        missing,
+    }
+}
+
+/// A duration for a person: "2 min", "90 s".
+fn minutes(seconds: f64) -> String {
+    if seconds >= 60.0 && (seconds / 60.0).fract() == 0.0 {
+        format!("{} min", seconds / 60.0)
+    } else {
+        format!("{seconds:.0} s")
     }
 }
 

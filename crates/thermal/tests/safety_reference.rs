@@ -36,13 +36,21 @@ fn fsis_chart_matches_the_source() {
     }
 }
 
-/// FDA Food Code sections 3-401.12, 3-403.11(B)/(C), 3-501.16(A): the °C values as the code prints
-/// them (whole degrees) match their °F within half a degree; microwave rules require a 2-minute
-/// covered stand.
+/// FDA Food Code (2022) sections 3-401.12, 3-401.13, 3-403.11(B)/(C), 3-501.16(A): the °C values
+/// as the code prints them (whole degrees) match their °F within half a degree; the microwave rules
+/// require the food covered and a 2-minute covered stand (3-401.12(B) and (D), 3-403.11(B)).
 #[test]
 fn food_code_rules_match_the_source() {
     let rules = [
-        (FDA_MICROWAVE_COOKING, "3-401.12", 74.0, 165.0, true, 120.0),
+        (
+            FDA_MICROWAVE_COOKING,
+            "3-401.12",
+            74.0,
+            165.0,
+            true,
+            120.0,
+            true,
+        ),
         (
             FDA_MICROWAVE_REHEATING,
             "3-403.11(B)",
@@ -50,12 +58,39 @@ fn food_code_rules_match_the_source() {
             165.0,
             true,
             120.0,
+            true,
         ),
-        (FDA_RTE_REHEATING, "3-403.11(C)", 57.0, 135.0, true, 0.0),
-        (FDA_HOT_HOLDING, "3-501.16(A)(1)", 57.0, 135.0, true, 0.0),
-        (FDA_COLD_HOLDING, "3-501.16(A)(2)", 5.0, 41.0, false, 0.0),
+        (FDA_PLANT_FOODS, "3-401.13", 57.0, 135.0, true, 0.0, false),
+        (
+            FDA_RTE_REHEATING,
+            "3-403.11(C)",
+            57.0,
+            135.0,
+            true,
+            0.0,
+            false,
+        ),
+        (
+            FDA_HOT_HOLDING,
+            "3-501.16(A)(1)",
+            57.0,
+            135.0,
+            true,
+            0.0,
+            false,
+        ),
+        (
+            FDA_COLD_HOLDING,
+            "3-501.16(A)(2)",
+            5.0,
+            41.0,
+            false,
+            0.0,
+            false,
+        ),
     ];
-    for (rule, section, c, f, minimum, stand) in rules {
+    for (rule, section, c, f, minimum, stand, covered) in rules {
+        assert_eq!(rule.covered, covered, "{section}");
         assert_eq!(rule.section, section);
         assert_eq!(
             (
@@ -73,45 +108,112 @@ fn food_code_rules_match_the_source() {
     }
 }
 
+/// Covered, with the 2-minute covered stand the microwave rules ask for (FDA 3-401.12(D)).
+const DONE_RIGHT: Handling = Handling {
+    stood_seconds: 120.0,
+    covered: true,
+};
+
 #[test]
 fn verdict_is_judged_on_the_coldest_cell_with_its_margin() {
     // Poultry in a microwave: FSIS 73.9 °C and FDA 3-401.12 74 °C; the stricter binds.
-    let v = verdict(SafetyCategory::Poultry, &[80.0, 75.0, 90.0], 120.0);
+    let v = verdict(SafetyCategory::Poultry, &[80.0, 75.0, 90.0], DONE_RIGHT);
     assert!(v.safe);
     assert_eq!(v.coldest, 75.0);
     assert!((v.margin - 1.0).abs() < 1e-12);
-    assert!(v.binding.source.contains("3-401.12"));
-    assert!(!v.short_stand);
-    let v = verdict(SafetyCategory::Poultry, &[80.0, 73.0], 60.0);
+    assert!(v.binding.source.contains("3-401.12") && v.binding.source.contains("2022"));
+    assert!(v.missing.is_empty());
+    let v = verdict(SafetyCategory::Poultry, &[80.0, 73.0], DONE_RIGHT);
     assert!(!v.safe);
     assert!((v.margin + 1.0).abs() < 1e-12);
-    assert!(v.short_stand, "60 s is shorter than the 2-minute stand");
     // A chilled dessert is judged on its warmest cell against cold holding, 5 °C.
-    let v = verdict(SafetyCategory::KeepCold, &[3.0, 6.0], 120.0);
+    let v = verdict(SafetyCategory::KeepCold, &[3.0, 6.0], DONE_RIGHT);
     assert!(!v.safe);
     assert!((v.margin + 1.0).abs() < 1e-12);
     // Whole meat: FSIS 62.8 °C, but microwave-cooked raw animal food needs 74 °C (FDA 3-401.12).
-    let v = verdict(SafetyCategory::WholeMeat, &[70.0], 180.0);
+    let v = verdict(SafetyCategory::WholeMeat, &[70.0], DONE_RIGHT);
     assert!(!v.safe);
+    // Vegetables cooked for hot holding: FDA 3-401.13, 57 °C, no stand or cover asked.
+    let v = verdict(
+        SafetyCategory::ServedHot,
+        &[60.0],
+        Handling {
+            stood_seconds: 0.0,
+            covered: false,
+        },
+    );
+    assert!(v.safe && v.binding.source.contains("3-401.13"));
     for c in SafetyCategory::ALL {
         assert_eq!(SafetyCategory::parse(c.as_str()), Some(c));
     }
     assert!(CAUTIONS.iter().any(|c| c.contains("thermometer")));
 }
 
+/// FDA 3-401.12 and 3-403.11(B): hot enough is not enough. Without the 2-minute covered stand, or
+/// uncovered, the rule is not met, and the verdict says what is missing.
+#[test]
+fn the_stand_and_the_cover_are_part_of_the_rule() {
+    let hot = [85.0, 90.0];
+    let short = verdict(
+        SafetyCategory::Poultry,
+        &hot,
+        Handling {
+            stood_seconds: 60.0,
+            covered: true,
+        },
+    );
+    assert!(!short.safe && short.margin > 0.0);
+    assert_eq!(
+        short.missing,
+        vec!["stand 2 min covered (plan: 1 min)".to_string()]
+    );
+    let open = verdict(
+        SafetyCategory::Reheated,
+        &hot,
+        Handling {
+            stood_seconds: 120.0,
+            covered: false,
+        },
+    );
+    assert!(!open.safe);
+    assert!(open.missing[0].contains("cover"));
+    let none = verdict(
+        SafetyCategory::Reheated,
+        &hot,
+        Handling {
+            stood_seconds: 0.0,
+            covered: false,
+        },
+    );
+    assert_eq!(none.missing.len(), 2);
+    // Whole cuts: FSIS asks for a 3-minute rest as well.
+    let rest = verdict(SafetyCategory::WholeMeat, &[80.0], DONE_RIGHT);
+    assert!(!rest.safe && rest.missing[0].starts_with("stand 3 min covered"));
+}
+
 #[test]
 fn bounded_verdict_judges_minimums_on_lower_and_maximums_on_upper_bounds() {
     // FDA 3-401.12 (74 °C for microwave-cooked poultry): nominally 76 °C passes, but a lower bound
     // of 72 °C does not.
-    let v = verdict_within(SafetyCategory::Poultry, &[72.0, 80.0], &[80.0, 88.0], 120.0);
+    let v = verdict_within(
+        SafetyCategory::Poultry,
+        &[72.0, 80.0],
+        &[80.0, 88.0],
+        DONE_RIGHT,
+    );
     assert!(!v.safe);
     assert!((v.margin + 2.0).abs() < 1e-12 && v.coldest == 72.0);
     // FDA 3-501.16 cold holding at 5 °C is judged on the warmest upper bound.
-    let v = verdict_within(SafetyCategory::KeepCold, &[2.0, 3.0], &[4.0, 5.5], 120.0);
+    let v = verdict_within(
+        SafetyCategory::KeepCold,
+        &[2.0, 3.0],
+        &[4.0, 5.5],
+        DONE_RIGHT,
+    );
     assert!(!v.safe && (v.margin + 0.5).abs() < 1e-12);
     assert_eq!(
-        verdict_within(SafetyCategory::Poultry, &[75.0], &[75.0], 120.0),
-        verdict(SafetyCategory::Poultry, &[75.0], 120.0)
+        verdict_within(SafetyCategory::Poultry, &[75.0], &[75.0], DONE_RIGHT),
+        verdict(SafetyCategory::Poultry, &[75.0], DONE_RIGHT)
     );
 }
 
@@ -121,7 +223,7 @@ fn bounded_verdict_judges_minimums_on_lower_and_maximums_on_upper_bounds() {
 #[test]
 fn non_finite_temperatures_never_pass() {
     for temps in [&[80.0, f64::NAN, 90.0][..], &[f64::INFINITY], &[]] {
-        let v = verdict(SafetyCategory::Poultry, temps, 120.0);
+        let v = verdict(SafetyCategory::Poultry, temps, DONE_RIGHT);
         assert!(!v.safe, "{temps:?}");
         assert!(v.margin.is_nan(), "{temps:?}: {}", v.margin);
     }

@@ -163,7 +163,11 @@ fn a_thick_chicken_breast_is_judged_at_its_cold_centre() {
     );
     let depth = course.coldest_depth[0];
     assert!((0.015..0.035).contains(&depth), "coldest at {depth} m");
-    assert!(!safety::verdict(food.safety, &[coldest], course.standing_seconds).safe);
+    let handling = safety::Handling {
+        stood_seconds: course.standing_seconds,
+        covered: true,
+    };
+    assert!(!safety::verdict(food.safety, &[coldest], handling).safe);
 }
 
 /// Halving every layer moves a thick piece's coldest point by less than 0.5 K.

@@ -29,7 +29,7 @@ pub use maps::{PlanMaps, Provenance, maps_for, materials};
 pub use problem::linear_prediction;
 pub use report::{
     Baseline, CellBounds, Evaluation, ItemSummary, Options, Quick, Refinement, Spread, Z95,
-    ZoneSummary,
+    ZoneSummary, verdict_words,
 };
 pub use verdicts::cell_bounds;
 

@@ -153,3 +153,38 @@ pub struct Options {
     /// Re-solve once with the simulation's correction.
     pub refine: bool,
 }
+
+impl Evaluation {
+    /// True when the maps are the illustrative field model's, not measurements.
+    pub fn illustrative(&self) -> bool {
+        matches!(self.provenance, Provenance::Synthetic)
+    }
+}
+
+/// A verdict in words, the same wherever it is shown: "meets", "meets on illustrative maps only"
+/// (never a plain "meets" on maps that are not measurements), or why it fails: too cold (or too
+/// warm) at the point judged, and what the rule asks for that the plan leaves out.
+pub fn verdict_words(v: &Verdict, illustrative: bool) -> String {
+    if !v.margin.is_finite() {
+        return "fails: no temperature to judge".into();
+    }
+    if v.safe {
+        return if illustrative {
+            "meets on illustrative maps only".into()
+        } else {
+            "meets".into()
+        };
+    }
+    let mut why = Vec::new();
+    if v.margin < 0.0 {
+        why.push(if v.binding.minimum {
+            "too cold at its coldest point".to_string()
+        } else {
+            "too warm at its warmest point".to_string()
+        });
+    }
+    if !v.missing.is_empty() {
+        why.push(format!("missing {}", v.missing.join(", ")));
+    }
+    format!("fails: {}", why.join("; "))
+}

@@ -89,8 +89,12 @@ pub(super) fn item_summaries(
             } else {
                 (temps, hot)
             };
-            let nominal = safety::verdict_within(cat.safety, &temps, &hot, plan.oven.standing_s);
-            let (mean, stood) = (course.items[k].mean[last], plan.oven.standing_s);
+            let handling = safety::Handling {
+                stood_seconds: plan.oven.standing_s,
+                covered: plan.items[k].covered,
+            };
+            let nominal = safety::verdict_within(cat.safety, &temps, &hot, handling);
+            let mean = course.items[k].mean[last];
             let (verdict, spread) = match bounds {
                 Some(b) if !cells_k.is_empty() => {
                     let lo: Vec<f64> = cells_k.iter().map(|&i| b.lower[i]).collect();
@@ -122,7 +126,7 @@ pub(super) fn item_summaries(
                         nominal,
                     };
                     (
-                        safety::verdict_within(cat.safety, &lo, &hi, stood),
+                        safety::verdict_within(cat.safety, &lo, &hi, handling),
                         Some(spread),
                     )
                 }
