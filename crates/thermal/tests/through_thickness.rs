@@ -10,7 +10,7 @@ use traycast_thermal::schedule::Schedule;
 use traycast_thermal::simulate::*;
 
 /// One column of food, `thickness` m, alone on a one-cell tray, heated at `rate` K/s (its column
-/// mean) for `heat` s and then standing `stand` s.
+/// mean) for `heat` s and then standing as `settings` say; covered.
 fn column(
     mat: &Material,
     thickness: f64,
@@ -19,11 +19,24 @@ fn column(
     heat: f64,
     settings: Settings,
 ) -> TimeCourse {
+    column_of(mat, thickness, start, rate, heat, settings, true)
+}
+
+/// [`column`], covered or not.
+fn column_of(
+    mat: &Material,
+    thickness: f64,
+    start: f64,
+    rate: f64,
+    heat: f64,
+    settings: Settings,
+    covered: bool,
+) -> TimeCourse {
     let items = [mat.clone()];
     let cells = [Some(CellFill {
         item: 0,
         thickness,
-        covered: true,
+        covered,
     })];
     let load = Load {
         tray: Tray {
@@ -258,27 +271,8 @@ fn a_slab_thaws_in_about_planks_time() {
         record_every: 60.0,
         ..Settings::default()
     };
-    let items = [mat.clone()];
-    let cells = [Some(CellFill {
-        item: 0,
-        thickness,
-        covered: true,
-    })];
-    let load = Load {
-        tray: Tray {
-            width: 1,
-            height: 1,
-            cell_size: 0.02,
-        },
-        items: &items,
-        cells: &cells,
-        start: &[-0.01],
-    };
-    let maps = Maps {
-        configs: 1,
-        rates: &[0.0],
-    };
-    let course = simulate(&load, &maps, &Schedule::default(), &settings).unwrap();
+    // No power: the slab thaws from the air alone.
+    let course = column(&mat, thickness, -0.01, 0.0, 0.0, settings);
     let thawed_at = course
         .times
         .iter()
@@ -356,36 +350,14 @@ fn an_uncovered_wet_surface_settles_at_the_wet_bulb_temperature() {
     }
     let water = catalogue::find("water").unwrap();
     let mat = Material::food(&water.composition()).unwrap();
-    let run = |covered: bool| {
-        let items = [mat.clone()];
-        let cells = [Some(CellFill {
-            item: 0,
-            thickness: 0.004,
-            covered,
-        })];
-        let load = Load {
-            tray: Tray {
-                width: 1,
-                height: 1,
-                cell_size: 0.02,
-            },
-            items: &items,
-            cells: &cells,
-            start: &[25.0],
-        };
-        let settings = Settings {
-            air: 25.0,
-            air_humidity: 0.5,
-            standing: 4.0 * 3600.0,
-            record_every: 600.0,
-            ..Settings::default()
-        };
-        let maps = Maps {
-            configs: 1,
-            rates: &[0.0],
-        };
-        simulate(&load, &maps, &Schedule::default(), &settings).unwrap()
+    let settings = Settings {
+        air: 25.0,
+        air_humidity: 0.5,
+        standing: 4.0 * 3600.0,
+        record_every: 600.0,
+        ..Settings::default()
     };
+    let run = |covered: bool| column_of(&mat, 0.004, 25.0, 0.0, 0.0, settings, covered);
     let open = run(false);
     let t = open.after_standing[0];
     assert!((t - 17.9).abs() < 1.0, "uncovered: {t} °C");

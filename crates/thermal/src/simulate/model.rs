@@ -437,15 +437,9 @@ impl<'a> Model<'a> {
             if self.open[i] && self.water_left[i] > 0.0 && self.temp[i] < BOILING_POINT {
                 let s = &self.settings;
                 let flux = evaporation::flux(s.surface_h, self.temp[i], s.air, s.air_humidity);
-                let d = (dt * flux * dx * dx).min(self.water_left[i]);
                 let specific = self.energy[i] / self.mass[i];
-                self.energy[i] -= d * (specific + evaporation::latent_heat(self.temp[i]));
-                self.mass[i] -= d;
-                self.water_left[i] -= d;
-                self.evaporated[i] += d;
-                if self.mass[i] <= 1e-9 * self.mass0[i] {
-                    self.mass[i] = 0.0;
-                    self.energy[i] = 0.0;
+                let per_kg = specific + evaporation::latent_heat(self.temp[i]);
+                if self.lose_water(i, dt * flux * dx * dx, per_kg) {
                     dried = true;
                     continue;
                 }
@@ -453,16 +447,8 @@ impl<'a> Model<'a> {
             // Boiling: the enthalpy above the boiling point leaves as vapour.
             let h_boil = mat.boiling_enthalpy();
             if self.water_left[i] > 0.0 && self.energy[i] > h_boil * self.mass[i] {
-                let d = ((self.energy[i] - h_boil * self.mass[i]) / LATENT_VAPORISATION)
-                    .min(self.water_left[i]);
-                self.energy[i] -= d * (h_boil + LATENT_VAPORISATION);
-                self.mass[i] -= d;
-                self.water_left[i] -= d;
-                self.evaporated[i] += d;
-                // Nothing left but a trace (pure water boiled away): the node is gone.
-                if self.mass[i] <= 1e-9 * self.mass0[i] {
-                    self.mass[i] = 0.0;
-                    self.energy[i] = 0.0;
+                let d = (self.energy[i] - h_boil * self.mass[i]) / LATENT_VAPORISATION;
+                if self.lose_water(i, d, h_boil + LATENT_VAPORISATION) {
                     dried = true;
                     continue;
                 }
@@ -480,6 +466,23 @@ impl<'a> Model<'a> {
                 self.dry_out(i);
             }
         }
+    }
+
+    /// Node `i` loses up to `d` kg of its water as vapour, each kilogram taking `per_kg` kJ (its
+    /// enthalpy and latent heat). True when nothing but a trace is left (pure water gone): the
+    /// node is then emptied, for [`Self::dry_out`].
+    fn lose_water(&mut self, i: usize, d: f64, per_kg: f64) -> bool {
+        let d = d.min(self.water_left[i]);
+        self.energy[i] -= d * per_kg;
+        self.mass[i] -= d;
+        self.water_left[i] -= d;
+        self.evaporated[i] += d;
+        let gone = self.mass[i] <= 1e-9 * self.mass0[i];
+        if gone {
+            self.mass[i] = 0.0;
+            self.energy[i] = 0.0;
+        }
+        gone
     }
 
     /// The cell of the first node whose temperature is not a finite number, if any.
