@@ -409,6 +409,7 @@ pub fn App() -> impl IntoView {
                     let v = &s.verdict;
                     let on = if s.spread.is_some() { " at the lower bound" } else { "" };
                     let words = traycast_plan::evaluate::verdict_words(v, e.illustrative());
+                    let judged = s.judged.map_or(String::new(), |j| format!("at its {} ({}); ", j.name(), j.place(p.tray.width)));
                     let verdict = if v.margin.is_finite() { format!("{words}{on} ({:+.1} {})", u.diff(v.margin), u.diff_symbol()) } else { words };
                     let range = |r: (f64, f64)| format!("{:.1}–{:.1} {}", u.temp(r.0), u.temp(r.1), u.symbol());
                     let spread = s.spread.as_ref().map(|sp| view! {
@@ -419,7 +420,7 @@ pub fn App() -> impl IntoView {
                         <tr class:unsafe=!v.safe>
                             <td>{it.name.clone()}</td><td>{u.fmt(s.min)}</td><td>{u.fmt(s.mean)}</td><td>{u.fmt(s.max)}</td>{spread}
                             <td>{if s.in_band.is_finite() { format!("{:.0} %", 100.0 * s.in_band) } else { "—".into() }}</td>
-                            <td class="verdict" title=v.binding.source.clone()>{verdict}</td>
+                            <td class="verdict">{verdict}<div class="rule">{judged}{v.binding.source.clone()}</div></td>
                             <td>{format!("{:.1} g", s.moisture_g)}</td>
                         </tr>
                     }
@@ -434,7 +435,7 @@ pub fn App() -> impl IntoView {
                 let budget = p.oven.budget_s.map_or("no budget".to_string(), |b| format!("of {b:.0} s"));
                 view! {
                     <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
-                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"verdict (coldest point)"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
+                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"verdict, point judged, rule"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
                     <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", u.diff_symbol())}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
                     <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
                     <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>

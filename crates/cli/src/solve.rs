@@ -128,7 +128,7 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
         let v = &r.verdict;
         let _ = writeln!(
             s,
-            "{:<28} {:>7} {:>7} {:>7}  {:>8}  {}\n    verdict: {}",
+            "{:<28} {:>7} {:>7} {:>7}  {:>8}  {}\n    verdict: {}{}",
             it.name,
             num(r.min, 1),
             num(r.mean, 1),
@@ -136,6 +136,11 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
             num(v.margin, 1),
             v.binding.source,
             traycast_plan::evaluate::verdict_words(v, e.illustrative()),
+            r.judged.map_or(String::new(), |j| format!(
+                ", judged at its {} ({})",
+                j.name(),
+                j.place(plan.tray.width)
+            )),
         );
         if let Some(sp) = &r.spread {
             let _ = writeln!(

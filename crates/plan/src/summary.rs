@@ -22,6 +22,10 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
             "name": i.name, "min_c": finite(&r.min), "mean_c": finite(&r.mean), "max_c": finite(&r.max), "safe": r.verdict.safe,
             "verdict": crate::evaluate::verdict_words(&r.verdict, e.illustrative()), "missing": r.verdict.missing,
             "illustrative_maps": e.illustrative(),
+            "judged": r.judged.map(|j| serde_json::json!({
+                "point": j.name(), "row": j.cell / plan.tray.width, "col": j.cell % plan.tray.width,
+                "depth_mm": j.depth_m * 1000.0,
+            })),
             "margin_k": finite(&r.verdict.margin), "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
             "verdict_on": if r.spread.is_some() { "95 % bounds" } else { "nominal temperatures" },
             "spread": r.spread.as_ref().map(|s| serde_json::json!({

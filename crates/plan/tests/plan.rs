@@ -755,3 +755,33 @@ fn a_library_above_the_oven_rating_is_named() {
         "{w}"
     );
 }
+
+/// Every verdict says which point it judged and where: hot rules at the item's coldest point
+/// (its cell and depth hold the verdict's temperature), cold holding at its warmest point.
+#[test]
+fn verdicts_say_which_point_they_judged_and_where() {
+    let plan = demos::demo("lunch-tray").unwrap();
+    let e = evaluate::evaluate(&plan, None, Options::default()).unwrap();
+    for (it, s) in plan.items.iter().zip(&e.items) {
+        let j = s.judged.expect("every item has cells");
+        assert_eq!(
+            plan.item_at(j.cell),
+            Some(plan.items.iter().position(|x| x.name == it.name).unwrap())
+        );
+        if j.warmest {
+            assert_eq!(j.name(), "warmest point");
+            assert_eq!(e.course.hottest_after_standing[j.cell], s.verdict.warmest);
+        } else {
+            assert_eq!(j.name(), "coldest point");
+            assert_eq!(e.course.after_standing[j.cell], s.verdict.coldest);
+            assert_eq!(e.course.at_depth(j.cell, j.depth_m), s.verdict.coldest);
+        }
+    }
+    let pudding = plan
+        .items
+        .iter()
+        .position(|i| i.food == "vanilla-pudding")
+        .unwrap();
+    assert!(e.items[pudding].judged.unwrap().warmest);
+    assert!(!e.items[0].judged.unwrap().warmest);
+}

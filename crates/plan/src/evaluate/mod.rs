@@ -28,8 +28,8 @@ pub use diagnosis::Diagnosis;
 pub use maps::{PlanMaps, Provenance, maps_for, materials};
 pub use problem::linear_prediction;
 pub use report::{
-    Baseline, CellBounds, Evaluation, ItemSummary, Options, Quick, Refinement, Spread, Z95,
-    ZoneSummary, verdict_words,
+    Baseline, CellBounds, Evaluation, ItemSummary, JudgedPoint, Options, Quick, Refinement, Spread,
+    Z95, ZoneSummary, verdict_words,
 };
 pub use verdicts::cell_bounds;
 

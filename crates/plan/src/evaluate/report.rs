@@ -41,6 +41,40 @@ pub struct ItemSummary {
     pub moisture_g: f64,
     /// The 95 % spread from the maps' rate uncertainties, when the maps carry them.
     pub spread: Option<Spread>,
+    /// Where the verdict's binding rule was judged (None for an item with no cells).
+    pub judged: Option<JudgedPoint>,
+}
+
+/// The point of an item a verdict was judged at.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct JudgedPoint {
+    /// True for the warmest point (a cold-holding maximum), false for the coldest.
+    pub warmest: bool,
+    /// The cell (row-major).
+    pub cell: usize,
+    /// Depth of that layer's centre below the food's top face, m.
+    pub depth_m: f64,
+}
+
+impl JudgedPoint {
+    /// "coldest point" or "warmest point".
+    pub fn name(&self) -> &'static str {
+        if self.warmest {
+            "warmest point"
+        } else {
+            "coldest point"
+        }
+    }
+
+    /// Where it is, for people: "row 3, col 7, 12 mm deep".
+    pub fn place(&self, width: usize) -> String {
+        format!(
+            "row {}, col {}, {:.0} mm deep",
+            self.cell / width,
+            self.cell % width,
+            self.depth_m * 1000.0
+        )
+    }
 }
 
 /// Where an item's temperatures after standing lie given the maps' standard errors: each interval

@@ -3,7 +3,7 @@
 
 use super::maps::PlanMaps;
 use super::prepared::Prepared;
-use super::report::{CellBounds, ItemSummary, Spread, Z95};
+use super::report::{CellBounds, ItemSummary, JudgedPoint, Spread, Z95};
 use crate::model::Plan;
 use traycast_thermal::composition::LATENT_VAPORISATION;
 use traycast_thermal::material::Material;
@@ -141,10 +141,55 @@ pub(super) fn item_summaries(
                 } else {
                     zoned.iter().filter(|v| **v == 0.0).count() as f64 / zoned.len() as f64
                 },
+                judged: judged_point(course, cells_k, &verdict, bounds),
                 verdict,
                 moisture_g: course.item_moisture_loss[k] * 1000.0,
                 spread,
             }
         })
         .collect()
+}
+
+/// Where `verdict` was judged among `cells`: the cell holding its coldest point (a minimum rule;
+/// on the lower bounds when there are bounds) or its warmest point (a maximum rule; on the upper
+/// bounds), and the depth of that layer.
+fn judged_point(
+    course: &TimeCourse,
+    cells: &[usize],
+    verdict: &safety::Verdict,
+    bounds: Option<&CellBounds>,
+) -> Option<JudgedPoint> {
+    let warmest = !verdict.binding.minimum;
+    let value = |i: usize| match (bounds, warmest) {
+        (Some(b), false) => b.lower[i],
+        (Some(b), true) => b.upper[i],
+        (None, false) => course.after_standing[i],
+        (None, true) => course.hottest_after_standing[i],
+    };
+    let cell = if warmest {
+        cells
+            .iter()
+            .copied()
+            .max_by(|&a, &b| value(a).total_cmp(&value(b)))
+    } else {
+        cells
+            .iter()
+            .copied()
+            .min_by(|&a, &b| value(a).total_cmp(&value(b)))
+    }?;
+    let depth_m = if warmest {
+        // The hottest layer's centre.
+        let layers = &course.layers_after_standing[cell];
+        let at = (0..layers.len())
+            .max_by(|&a, &b| layers[a].total_cmp(&layers[b]))
+            .unwrap_or(0);
+        (at as f64 + 0.5) * course.layer_thickness[cell]
+    } else {
+        course.coldest_depth[cell]
+    };
+    Some(JudgedPoint {
+        warmest,
+        cell,
+        depth_m,
+    })
 }
