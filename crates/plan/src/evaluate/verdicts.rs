@@ -95,7 +95,8 @@ pub(super) fn item_summaries(
             };
             let nominal = safety::verdict_within(cat.safety, &temps, &hot, handling);
             let mean = course.items[k].mean[last];
-            let (verdict, spread) = match bounds {
+            // The verdict, the spread, and the per-cell values the verdict was judged on.
+            let (verdict, spread, (lo, hi)) = match bounds {
                 Some(b) if !cells_k.is_empty() => {
                     let lo: Vec<f64> = cells_k.iter().map(|&i| b.lower[i]).collect();
                     let hi: Vec<f64> = cells_k.iter().map(|&i| b.upper[i]).collect();
@@ -128,9 +129,10 @@ pub(super) fn item_summaries(
                     (
                         safety::verdict_within(cat.safety, &lo, &hi, handling),
                         Some(spread),
+                        (lo, hi),
                     )
                 }
-                _ => (nominal, None),
+                _ => (nominal, None, (temps, hot)),
             };
             ItemSummary {
                 min: course.items[k].min[last],
@@ -141,7 +143,7 @@ pub(super) fn item_summaries(
                 } else {
                     zoned.iter().filter(|v| **v == 0.0).count() as f64 / zoned.len() as f64
                 },
-                judged: judged_point(course, cells_k, &verdict, bounds),
+                judged: judged_point(course, cells_k, &verdict, &lo, &hi),
                 verdict,
                 moisture_g: course.item_moisture_loss[k] * 1000.0,
                 spread,
@@ -150,32 +152,22 @@ pub(super) fn item_summaries(
         .collect()
 }
 
-/// Where `verdict` was judged among `cells`: the cell holding its coldest point (a minimum rule;
-/// on the lower bounds when there are bounds) or its warmest point (a maximum rule; on the upper
-/// bounds), and the depth of that layer.
+/// Where `verdict` was judged among `cells`, given the values it was judged on (`lower` for
+/// minimum rules, `upper` for maximum rules, one per cell): the cell holding its coldest point or
+/// its warmest point, and the depth of that layer.
 fn judged_point(
     course: &TimeCourse,
     cells: &[usize],
     verdict: &safety::Verdict,
-    bounds: Option<&CellBounds>,
+    lower: &[f64],
+    upper: &[f64],
 ) -> Option<JudgedPoint> {
     let warmest = !verdict.binding.minimum;
-    let value = |i: usize| match (bounds, warmest) {
-        (Some(b), false) => b.lower[i],
-        (Some(b), true) => b.upper[i],
-        (None, false) => course.after_standing[i],
-        (None, true) => course.hottest_after_standing[i],
-    };
-    let cell = if warmest {
-        cells
-            .iter()
-            .copied()
-            .max_by(|&a, &b| value(a).total_cmp(&value(b)))
+    let judged = cells.iter().zip(if warmest { upper } else { lower });
+    let (&cell, _) = if warmest {
+        judged.max_by(|a, b| a.1.total_cmp(b.1))
     } else {
-        cells
-            .iter()
-            .copied()
-            .min_by(|&a, &b| value(a).total_cmp(&value(b)))
+        judged.min_by(|a, b| a.1.total_cmp(b.1))
     }?;
     let depth_m = if warmest {
         // The hottest layer's centre.
