@@ -84,6 +84,14 @@ await test('browser and command line agree on the same plan', async ({ page }) =
   assert(cli.dwell_s.length === web.dwell_s.length, 'same number of configurations');
   cli.dwell_s.forEach((d, j) => assert(d.toFixed(1) === web.dwell_s[j].toFixed(1), `dwell ${j}: cli ${d} web ${web.dwell_s[j]}`));
   cli.items.forEach((it, k) => assert(it.safe === web.items[k].safe && it.min_c.toFixed(1) === web.items[k].min_c.toFixed(1), `verdict ${k}`));
+  // One safety card per item, saying what the JSON card says: the verdict, and the kill where one is needed.
+  const cards = page.locator('#safety-cards article.card');
+  assert(await cards.count() === web.items.length, 'one safety card per item');
+  for (const [k, it] of cli.items.entries()) {
+    const text = await cards.nth(k).textContent();
+    assert(text.includes(it.safety_card.verdict), `card ${k} verdict`);
+    if (it.log_reduction_required !== null) assert(text.includes(`log10 ${it.safety_card.pathogen}`), `card ${k} kill`);
+  }
 });
 
 await test('painting another target band changes the plan; undo restores it exactly', async ({ page }) => {

@@ -1,5 +1,6 @@
 //! The workbench: one screen with the tray editor, live views and the plan's numbers.
 
+use crate::cards::SafetyCards;
 use crate::draw;
 use crate::paint::{Tool, paint};
 use crate::simview::{SimView, SimViewPicker};
@@ -15,7 +16,6 @@ use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
 use traycast_plan::runs::{HeatingRuns, ReadOptions};
 use traycast_plan::{demos, wire};
 use traycast_thermal::catalogue::CATALOGUE;
-use traycast_thermal::safety::CAUTIONS;
 use wasm_bindgen::JsCast;
 
 fn mark(name: &str) {
@@ -672,10 +672,7 @@ pub fn App() -> impl IntoView {
                 <h2>"Outcome"</h2>
                 <div id="summary">{summary}</div>
                 {quality_view}
-                <aside class="cautions" id="cautions">
-                    <h3>"Before you serve"</h3>
-                    <ul>{CAUTIONS.iter().map(|c| view! { <li>{*c}</li> }).collect_view()}</ul>
-                </aside>
+                <SafetyCards plan=plan eval=eval unit=unit />
             </section>
         </main>
     }

@@ -4,6 +4,7 @@
 //! from `traycast-plan`; this crate only edits, draws and stores.
 
 mod app;
+mod cards;
 mod draw;
 mod paint;
 mod simview;

@@ -124,24 +124,23 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
         "\n{:<28} {:>7} {:>7} {:>7}  {:>8}  rule",
         "food item (°C after standing)", "coldest", "mean", "hottest", "margin K"
     );
-    for (it, r) in plan.items.iter().zip(&e.items) {
+    for (k, (it, r)) in plan.items.iter().zip(&e.items).enumerate() {
         let v = &r.verdict;
         let _ = writeln!(
             s,
-            "{:<28} {:>7} {:>7} {:>7}  {:>8}  {}\n    verdict: {}{}",
+            "{:<28} {:>7} {:>7} {:>7}  {:>8}  {}",
             it.name,
             num(r.min, 1),
             num(r.mean, 1),
             num(r.max, 1),
             num(v.margin, 1),
             v.binding.source,
-            traycast_plan::evaluate::verdict_words(v, e.illustrative()),
-            r.judged.map_or(String::new(), |j| format!(
-                ", judged at its {} ({})",
-                j.name(),
-                j.place(plan.tray.width)
-            )),
         );
+        // The item's safety card, the same lines the workbench and the report show.
+        let card = traycast_plan::evaluate::SafetyCard::of(plan, e, k);
+        for line in card.lines(&|t| format!("{} °C", num(t, 1)), &|d| format!("{d:+.1} K")) {
+            let _ = writeln!(s, "    {line}");
+        }
         if let Some(sp) = &r.spread {
             let _ = writeln!(
                 s,

@@ -18,7 +18,7 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
             "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
             "diagnosis": r.diagnosis.as_ref().map(ToString::to_string),
         })).collect::<Vec<_>>(),
-        "items": plan.items.iter().zip(&e.items).map(|(i, r)| serde_json::json!({
+        "items": plan.items.iter().zip(&e.items).enumerate().map(|(k, (i, r))| serde_json::json!({
             "name": i.name, "min_c": finite(&r.min), "mean_c": finite(&r.mean), "max_c": finite(&r.max), "safe": r.verdict.safe,
             "verdict": crate::evaluate::verdict_words(&r.verdict, e.illustrative()), "missing": r.verdict.missing,
             "illustrative_maps": e.illustrative(),
@@ -27,6 +27,9 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
                 "depth_mm": j.depth_m * 1000.0,
             })),
             "margin_k": finite(&r.verdict.margin), "rule": r.verdict.binding.source, "moisture_g": r.moisture_g,
+            "log_reduction": r.verdict.kill.and_then(|k| finite(&k.achieved)),
+            "log_reduction_required": r.verdict.kill.map(|k| k.target.logs),
+            "safety_card": crate::evaluate::SafetyCard::of(plan, e, k).to_json(),
             "verdict_on": if r.spread.is_some() { "95 % bounds" } else { "nominal temperatures" },
             "spread": r.spread.as_ref().map(|s| serde_json::json!({
                 "coldest_c": [finite(&s.coldest.0), finite(&s.coldest.1)],

@@ -707,6 +707,10 @@ fn the_safety_verdict_is_judged_on_the_lower_bound() {
         );
         assert!(it.verdict.margin < ex.verdict.margin);
         assert_eq!(s.nominal.margin, ex.verdict.margin);
+        // The kill is judged on the lowered history too: never more than the nominal kill.
+        if let (Some(k), Some(n)) = (it.verdict.kill, s.nominal.kill) {
+            assert!(k.achieved <= n.achieved, "{} > {}", k.achieved, n.achieved);
+        }
     }
     // The summary shows the interval and says what the verdict was judged on.
     let json = traycast_plan::summary::to_json(&p, &wide);

@@ -785,3 +785,56 @@ fn verdicts_say_which_point_they_judged_and_where() {
     assert!(e.items[pudding].judged.unwrap().warmest);
     assert!(!e.items[0].judged.unwrap().warmest);
 }
+
+/// The kill at the coldest point is part of every verdict whose category asks for one: the lunch
+/// tray's chicken needs 7 log10 Salmonella (9 CFR 381.150), its rice 6 log10 Listeria, and the
+/// vegetables and the pudding none. Each item's kill is the least over its cells of the kill along
+/// the cell's coldest-layer history, and the JSON summary and the safety card carry the same.
+#[test]
+fn each_verdict_carries_the_kill_at_the_coldest_point() {
+    let plan = demos::demo("lunch-tray").unwrap();
+    let e = evaluate::evaluate(&plan, None, Options::default()).unwrap();
+    let json = traycast_plan::summary::to_json(&plan, &e);
+    for (k, (it, s)) in plan.items.iter().zip(&e.items).enumerate() {
+        let cat = plan.catalogue_food(k).unwrap().safety;
+        let item_json = &json["items"][k];
+        let card = evaluate::SafetyCard::of(&plan, &e, k);
+        match cat.kill_target() {
+            Some(target) => {
+                let kill = s.verdict.kill.expect("a kill target gives a kill");
+                let least = (0..plan.tray.cells())
+                    .filter(|&i| plan.item_at(i) == Some(k))
+                    .map(|i| {
+                        target
+                            .curve
+                            .log_reduction(&e.course.trace_times, &e.course.coldest_trace[i])
+                    })
+                    .fold(f64::INFINITY, f64::min);
+                assert_eq!(kill.achieved, least, "{}", it.name);
+                assert_eq!(item_json["log_reduction_required"], target.logs);
+                assert_eq!(
+                    item_json["safety_card"]["log_reduction_required"],
+                    target.logs
+                );
+                assert!(
+                    card.lines(&|t| format!("{t:.1}"), &|d| format!("{d:+.1}"))[2]
+                        .contains(target.curve.pathogen)
+                );
+                // Not safe without it.
+                if !kill.met() {
+                    assert!(!s.verdict.safe);
+                }
+            }
+            None => {
+                assert!(s.verdict.kill.is_none());
+                assert!(item_json["log_reduction"].is_null());
+                assert!(item_json["log_reduction_required"].is_null());
+            }
+        }
+        assert_eq!(item_json["safety_card"]["verdict"], item_json["verdict"]);
+        assert_eq!(
+            card.lines(&|t| format!("{t}"), &|d| format!("{d}")).len(),
+            5
+        );
+    }
+}

@@ -108,10 +108,14 @@ fn food_code_rules_match_the_source() {
     }
 }
 
+/// A kill far past every category's target, for checks of the other parts of a verdict.
+const KILLED: f64 = 100.0;
+
 /// Covered, with the 2-minute covered stand the microwave rules ask for (FDA 3-401.12(D)).
 const DONE_RIGHT: Handling = Handling {
     stood_seconds: 120.0,
     covered: true,
+    log_reduction: Some(KILLED),
 };
 
 #[test]
@@ -140,6 +144,7 @@ fn verdict_is_judged_on_the_coldest_cell_with_its_margin() {
         Handling {
             stood_seconds: 0.0,
             covered: false,
+            log_reduction: Some(KILLED),
         },
     );
     assert!(v.safe && v.binding.source.contains("3-401.13"));
@@ -160,6 +165,7 @@ fn the_stand_and_the_cover_are_part_of_the_rule() {
         Handling {
             stood_seconds: 60.0,
             covered: true,
+            log_reduction: Some(KILLED),
         },
     );
     assert!(!short.safe && short.margin > 0.0);
@@ -173,6 +179,7 @@ fn the_stand_and_the_cover_are_part_of_the_rule() {
         Handling {
             stood_seconds: 120.0,
             covered: false,
+            log_reduction: Some(KILLED),
         },
     );
     assert!(!open.safe);
@@ -183,6 +190,7 @@ fn the_stand_and_the_cover_are_part_of_the_rule() {
         Handling {
             stood_seconds: 0.0,
             covered: false,
+            log_reduction: Some(KILLED),
         },
     );
     assert_eq!(none.missing.len(), 2);

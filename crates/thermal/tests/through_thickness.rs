@@ -176,11 +176,16 @@ fn a_thick_chicken_breast_is_judged_at_its_cold_centre() {
     );
     let depth = course.coldest_depth[0];
     assert!((0.015..0.035).contains(&depth), "coldest at {depth} m");
+    // Its kill: Salmonella along the coldest layer's history falls far short of 7 log10 too.
+    let curve = food.safety.kill_target().unwrap().curve;
+    let kill = curve.log_reduction(&course.trace_times, &course.coldest_trace[0]);
     let handling = safety::Handling {
         stood_seconds: course.standing_seconds,
         covered: true,
+        log_reduction: Some(kill),
     };
-    assert!(!safety::verdict(food.safety, &[coldest], handling).safe);
+    let v = safety::verdict(food.safety, &[coldest], handling);
+    assert!(!v.safe && !v.kill.unwrap().met(), "kill {kill}");
 }
 
 /// Halving every layer moves a thick piece's coldest point by less than 0.5 K.

@@ -12,6 +12,7 @@
 //! - `report`: the types all of this returns.
 
 mod baseline;
+mod card;
 mod course;
 mod diagnosis;
 mod maps;
@@ -22,6 +23,7 @@ mod report;
 mod verdicts;
 
 pub use baseline::baseline;
+pub use card::SafetyCard;
 pub(crate) use course::simulate_load;
 pub use course::time_course;
 pub use diagnosis::Diagnosis;
@@ -29,7 +31,7 @@ pub use maps::{PlanMaps, Provenance, maps_for, materials};
 pub use problem::linear_prediction;
 pub use report::{
     Baseline, CellBounds, Evaluation, ItemSummary, JudgedPoint, Options, Quick, Refinement, Spread,
-    Z95, ZoneSummary, verdict_words,
+    Z95, ZoneSummary, logs, verdict_words,
 };
 pub use verdicts::cell_bounds;
 

@@ -217,8 +217,25 @@ pub fn verdict_words(v: &Verdict, illustrative: bool) -> String {
             "too warm at its warmest point".to_string()
         });
     }
+    if let Some(k) = v.kill.filter(|k| !k.met() && !k.achieved.is_nan()) {
+        why.push(format!(
+            "kills {} of the {} log10 {} it needs at its coldest point",
+            logs(k.achieved),
+            k.target.logs,
+            k.target.curve.pathogen
+        ));
+    }
     if !v.missing.is_empty() {
         why.push(format!("missing {}", v.missing.join(", ")));
     }
     format!("fails: {}", why.join("; "))
+}
+
+/// A log10 reduction for people: one decimal, and "100+" past the point where more says nothing.
+pub fn logs(achieved: f64) -> String {
+    if achieved >= 100.0 {
+        "100+".into()
+    } else {
+        format!("{achieved:.1}")
+    }
 }

@@ -92,6 +92,7 @@ pub(super) fn item_summaries(
             let handling = safety::Handling {
                 stood_seconds: plan.oven.standing_s,
                 covered: plan.items[k].covered,
+                log_reduction: kill_at_coldest(course, cells_k, cat.safety, None),
             };
             let nominal = safety::verdict_within(cat.safety, &temps, &hot, handling);
             let mean = course.items[k].mean[last];
@@ -126,6 +127,10 @@ pub(super) fn item_summaries(
                         ),
                         nominal,
                     };
+                    let handling = safety::Handling {
+                        log_reduction: kill_at_coldest(course, cells_k, cat.safety, Some(b)),
+                        ..handling
+                    };
                     (
                         safety::verdict_within(cat.safety, &lo, &hi, handling),
                         Some(spread),
@@ -150,6 +155,35 @@ pub(super) fn item_summaries(
             }
         })
         .collect()
+}
+
+/// The kill of `category`'s target pathogen at the item's coldest point: the least, over its
+/// `cells`, of the kill along each cell's coldest-layer history through heating and standing (None
+/// for a category without a kill target, or an item without cells). With `bounds`, each history
+/// is lowered by the distance from the cell's coldest point to its lower bound after standing: the
+/// whole history takes the final shortfall, which is the largest (the energy's uncertainty grows as
+/// it is absorbed), so this errs towards less kill.
+fn kill_at_coldest(
+    course: &TimeCourse,
+    cells: &[usize],
+    category: safety::SafetyCategory,
+    bounds: Option<&CellBounds>,
+) -> Option<f64> {
+    let curve = category.kill_target()?.curve;
+    let mut least: Option<f64> = None;
+    let mut lowered = Vec::new();
+    for &i in cells {
+        let shift = bounds.map_or(0.0, |b| (b.lower[i] - course.after_standing[i]).min(0.0));
+        lowered.clear();
+        lowered.extend(course.coldest_trace[i].iter().map(|t| t + shift));
+        let logs = curve.log_reduction(&course.trace_times, &lowered);
+        // NaN (a history that is not a finite number) can vouch for nothing: it is the answer.
+        if logs.is_nan() {
+            return Some(f64::NAN);
+        }
+        least = Some(least.map_or(logs, |l| l.min(logs)));
+    }
+    least
 }
 
 /// Where `verdict` was judged among `cells`, given the values it was judged on (`lower` for

@@ -235,6 +235,12 @@ pub struct TimeCourse {
     pub items: Vec<ItemCurve>,
     /// Highest temperature any layer of each cell reached, °C.
     pub peak: Vec<f64>,
+    /// Every step's instant through heating and standing, s.
+    pub trace_times: Vec<f64>,
+    /// Each cell's coldest layer at every instant of [`TimeCourse::trace_times`], °C (empty for
+    /// empty cells). Its kill is a lower bound on the kill of every layer of the cell (the kill
+    /// rate rises with temperature), so it is what time at temperature is judged on.
+    pub coldest_trace: Vec<Vec<f64>>,
     /// Coldest point of each cell when the power goes off, °C.
     pub end_of_heating: Vec<f64>,
     /// Coldest point of each cell after the standing time, °C.
@@ -367,6 +373,8 @@ pub fn simulate(
         frames: rec.frames,
         items: rec.items,
         peak: rec.peak,
+        trace_times: rec.trace_times,
+        coldest_trace: rec.coldest_trace,
         end_of_heating,
         after_standing: last.coldest,
         hottest_after_standing: last.hottest,

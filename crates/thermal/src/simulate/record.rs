@@ -98,6 +98,9 @@ pub(super) struct Recorder {
     pub frames: Vec<Vec<f64>>,
     pub items: Vec<ItemCurve>,
     pub peak: Vec<f64>,
+    /// Every step's instant, s, and each cell's coldest layer then (empty for empty cells).
+    pub trace_times: Vec<f64>,
+    pub coldest_trace: Vec<Vec<f64>>,
     pub next: f64,
     view: View,
 }
@@ -109,6 +112,8 @@ impl Recorder {
             frames: vec![],
             items: vec![ItemCurve::default(); items],
             peak: Columns::of(m).hottest,
+            trace_times: vec![],
+            coldest_trace: vec![Vec::new(); m.load.tray.cells()],
             next: 0.0,
             view,
         }
@@ -146,11 +151,16 @@ impl Recorder {
         }
     }
 
+    /// Follows every step: each cell's peak and coldest layer, and a frame when one is due.
     pub fn track(&mut self, t: f64, m: &Model, every: f64) {
+        self.trace_times.push(t);
         for &i in &m.filled {
+            let mut lo = f64::INFINITY;
             for node in m.nodes(i) {
                 self.peak[i] = self.peak[i].max(m.temp[node]);
+                lo = lo.min(m.temp[node]);
             }
+            self.coldest_trace[i].push(lo);
         }
         if t + 1e-9 >= self.next {
             self.record(t, m);

@@ -1,4 +1,5 @@
-//! Food-safety rules as data, with their sources, and the coldest-point verdict.
+//! Food-safety rules as data, with their sources: temperatures, stands, and the kill each category
+//! needs.
 //!
 //! Sources (transcribed in shared/reference/physics.md §2):
 //! - USDA FSIS / FoodSafety.gov "Safe Minimum Internal Temperatures" consumer chart; °C by FSIS's
@@ -8,12 +9,10 @@
 //!   confirmed through state adoptions of the 2009–2017 editions; that the 2022 edition keeps them
 //!   is recalled from memory.
 //!
-//! A rule is met only when its procedure is too: the microwave rules ask for the food to be covered
-//! and to stand covered for 2 minutes, and a plan that leaves either out is never shown as meeting
-//! them ([`Verdict::missing`] says what is missing).
-//!
 //! These are planning aids. Local food codes and licensed practice govern; verify with a calibrated
 //! thermometer.
+
+use super::lethality::{KillTarget, LISTERIA, SALMONELLA_MEAT, SALMONELLA_POULTRY};
 
 /// A row of the USDA FSIS safe minimum internal temperature chart.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -248,6 +247,44 @@ impl SafetyCategory {
         }
     }
 
+    /// The log10 reduction of its target pathogen this category must reach at its coldest point,
+    /// through heating and standing; None where no kill step is asked for (plant foods held hot,
+    /// chilled items).
+    pub fn kill_target(self) -> Option<KillTarget> {
+        let salmonella_meat = KillTarget {
+            curve: SALMONELLA_MEAT,
+            logs: 6.5,
+            source: "9 CFR 318.17(a)(1), cooked beef; FSIS Appendix A extends it to other meats",
+        };
+        // Ready-to-eat and reheated foods: the hazard is recontamination after cooking.
+        let listeria = KillTarget {
+            curve: LISTERIA,
+            logs: 6.0,
+            source: "ready-to-eat foods: UK ACMSF 1995 / ECFF (from memory)",
+        };
+        match self {
+            SafetyCategory::Poultry => Some(KillTarget {
+                curve: SALMONELLA_POULTRY,
+                logs: 7.0,
+                source: "9 CFR 381.150(a)(1), ready-to-eat poultry",
+            }),
+            SafetyCategory::GroundMeat | SafetyCategory::WholeMeat => Some(salmonella_meat),
+            SafetyCategory::Fish => Some(KillTarget {
+                source: "cooked ready-to-eat fish: FDA Fish and Fishery Products Hazards and Controls Guidance, ch. 16 (from memory)",
+                ..listeria
+            }),
+            // No egg curve here: the poultry curve is far more heat-tolerant than published egg
+            // data, so judging eggs on it errs towards the conservative side.
+            SafetyCategory::EggDish => Some(KillTarget {
+                curve: SALMONELLA_POULTRY,
+                logs: 5.0,
+                source: "treated shell eggs: 21 CFR 118.3 (from memory), judged on the poultry curve",
+            }),
+            SafetyCategory::Reheated | SafetyCategory::PrecookedHam => Some(listeria),
+            SafetyCategory::ServedHot | SafetyCategory::KeepCold => None,
+        }
+    }
+
     /// Short lower-case name, used in files.
     pub fn as_str(self) -> &'static str {
         match self {
@@ -266,107 +303,6 @@ impl SafetyCategory {
     /// Parses [`SafetyCategory::as_str`].
     pub fn parse(s: &str) -> Option<Self> {
         Self::ALL.into_iter().find(|c| c.as_str() == s)
-    }
-}
-
-/// How an item was heated and stood: what the procedural parts of a rule are checked against.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Handling {
-    /// Standing time after heating, s.
-    pub stood_seconds: f64,
-    /// Covered while heating and standing.
-    pub covered: bool,
-}
-
-/// The coldest-point verdict for one food item.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Verdict {
-    /// True when every requirement holds: its temperature, and its stand and cover.
-    pub safe: bool,
-    /// The requirement with the smallest margin.
-    pub binding: Requirement,
-    /// Margin against it, K: coldest − limit for a minimum, limit − warmest for a maximum.
-    pub margin: f64,
-    /// Coldest point after standing, °C.
-    pub coldest: f64,
-    /// Warmest point after standing, °C.
-    pub warmest: f64,
-    /// What the rules ask for that the plan leaves out, e.g. "stand 2 min covered (plan: 1 min)";
-    /// empty when nothing is. A verdict with anything here is never safe.
-    pub missing: Vec<String>,
-}
-
-/// Judges an item from its cells' temperatures after standing (°C) and how it was handled.
-pub fn verdict(category: SafetyCategory, after_standing: &[f64], handling: Handling) -> Verdict {
-    verdict_within(category, after_standing, after_standing, handling)
-}
-
-/// Judges an item whose cell temperatures are only known within bounds: minimum requirements are
-/// checked on the coldest lower bound, maximum requirements on the warmest upper bound; the stand
-/// and cover each rule asks for must be in the plan too.
-///
-/// No temperatures, or any that is not a finite number, can never be judged safe: the verdict then
-/// fails with a NaN margin (shown as "no value"), rather than judging the cells that are left.
-pub fn verdict_within(
-    category: SafetyCategory,
-    lower: &[f64],
-    upper: &[f64],
-    handling: Handling,
-) -> Verdict {
-    let judgeable =
-        !lower.is_empty() && !upper.is_empty() && lower.iter().chain(upper).all(|v| v.is_finite());
-    let (coldest, warmest) = if judgeable {
-        (
-            lower.iter().copied().fold(f64::INFINITY, f64::min),
-            upper.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-        )
-    } else {
-        (f64::NAN, f64::NAN)
-    };
-    let reqs = category.requirements();
-    let margin_of = |r: &Requirement| {
-        if r.minimum {
-            coldest - r.celsius
-        } else {
-            r.celsius - warmest
-        }
-    };
-    let binding = reqs
-        .iter()
-        .min_by(|a, b| margin_of(a).total_cmp(&margin_of(b)))
-        .expect("every category has a requirement")
-        .clone();
-    let margin = margin_of(&binding);
-    let mut missing = Vec::new();
-    let stand = reqs.iter().map(|r| r.stand_seconds).fold(0.0, f64::max);
-    let cover = reqs.iter().any(|r| r.covered);
-    if cover && !handling.covered {
-        missing.push("cover the food while it heats and stands".to_string());
-    }
-    if stand > handling.stood_seconds {
-        missing.push(format!(
-            "stand {}{} (plan: {})",
-            minutes(stand),
-            if cover { " covered" } else { "" },
-            minutes(handling.stood_seconds)
-        ));
-    }
-    Verdict {
-        safe: margin >= 0.0 && margin.is_finite() && missing.is_empty(),
-        binding,
-        margin,
-        coldest,
-        warmest,
-        missing,
-    }
-}
-
-/// A duration for a person: "2 min", "90 s".
-fn minutes(seconds: f64) -> String {
-    if seconds >= 60.0 && (seconds / 60.0).fract() == 0.0 {
-        format!("{} min", seconds / 60.0)
-    } else {
-        format!("{seconds:.0} s")
     }
 }
 
