@@ -91,6 +91,76 @@ pub fn line(x: &[f64], y: &[f64]) -> Option<LineFit> {
     })
 }
 
+/// The slope's standard error allowing for autocorrelated residuals: probe traces are smooth (the
+/// food's own lag, the sensor's), so neighbouring residuals share their sign and the white-noise
+/// error of [`line`] is too small.
+///
+/// Heteroskedasticity-and-autocorrelation-consistent (HAC) estimate of Newey & West (1987) with
+/// the Bartlett kernel, prewhitened by an AR(1) fit as Andrews & Monahan (1992) propose: the
+/// scores u_t = (x_t − x̄)·e_t are whitened, v_t = u_t − ρ·u_{t−1}, their long-run variance is
+/// summed with weights 1 − l/(L+1) up to Andrews's (1991) AR(1) plug-in bandwidth
+/// L = 1.1447·(α n)^(1/3), α = 4ρ_v² / ((1 − ρ_v)²(1 + ρ_v)²), and recoloured by 1/(1 − ρ)².
+/// ρ is the residuals' lag-1 autocorrelation with Kendall's small-sample bias (1 + 3ρ)/n added
+/// back (residuals of a fitted line understate it by about (2 + 4ρ)/n), kept within ±0.97.
+/// Var(b) = Ω / Sxx², scaled by n/(n − 2).
+///
+/// An error estimated from few independent readings is itself uncertain: the result is widened by
+/// t₀.₉₇₅(ν)/z₀.₉₇₅ with ν = n(1 − ρ)/(1 + ρ) − 2 effective degrees of freedom (at least 3), so that
+/// ±1.96 of it is a 95 % interval. NaN with fewer than 8 points.
+pub fn slope_se_hac(x: &[f64], y: &[f64], fit: &LineFit) -> f64 {
+    let n = x.len().min(y.len());
+    if n < 8 {
+        return f64::NAN;
+    }
+    let nf = n as f64;
+    let mx = x[..n].iter().sum::<f64>() / nf;
+    let sxx: f64 = x[..n].iter().map(|v| (v - mx).powi(2)).sum();
+    let e: Vec<f64> = (0..n).map(|t| y[t] - fit.at(x[t])).collect();
+    let u: Vec<f64> = (0..n).map(|t| (x[t] - mx) * e[t]).collect();
+    let lag1 = |v: &[f64]| {
+        let (mut num, mut den) = (0.0, 0.0);
+        for t in 1..v.len() {
+            num += v[t] * v[t - 1];
+            den += v[t - 1] * v[t - 1];
+        }
+        if den > 0.0 { num / den } else { 0.0 }
+    };
+    // The residuals' own persistence, bias-corrected, whitens the scores.
+    let rho_e = lag1(&e);
+    let rho = (rho_e + (2.0 + 4.0 * rho_e) / nf).clamp(-0.97, 0.97);
+    let v: Vec<f64> = (1..n).map(|t| u[t] - rho * u[t - 1]).collect();
+    let rv = lag1(&v).clamp(-0.97, 0.97);
+    let alpha = 4.0 * rv * rv / ((1.0 - rv).powi(2) * (1.0 + rv).powi(2));
+    let m = v.len();
+    let bandwidth = ((1.1447 * (alpha * m as f64).cbrt()).floor() as usize).min(m - 1);
+    let mut omega: f64 = v.iter().map(|a| a * a).sum();
+    for l in 1..=bandwidth {
+        let w = 1.0 - l as f64 / (bandwidth + 1) as f64;
+        let gamma: f64 = (l..m).map(|t| v[t] * v[t - l]).sum();
+        omega += 2.0 * w * gamma;
+    }
+    // The whitened series covers n − 1 scores: scale back to n, then recolour.
+    let omega = omega.max(0.0) * nf / m as f64 / (1.0 - rho).powi(2);
+    let effective = nf * (1.0 - rho.max(0.0)) / (1.0 + rho.max(0.0));
+    let widen = t975(effective - 2.0) / Z975;
+    (omega / (sxx * sxx) * nf / (nf - 2.0)).sqrt() * widen
+}
+
+/// The two-sided 95 % normal quantile, z₀.₉₇₅.
+const Z975: f64 = 1.959_963_984_540_054;
+
+/// Student's t quantile t₀.₉₇₅(ν) by the Cornish–Fisher expansion in 1/ν (Abramowitz & Stegun
+/// 26.7.5), for ν ≥ 3 (smaller ν are taken as 3).
+pub fn t975(nu: f64) -> f64 {
+    let nu = nu.max(3.0);
+    let z = Z975;
+    let (z3, z5, z7, z9) = (z.powi(3), z.powi(5), z.powi(7), z.powi(9));
+    z + (z3 + z) / (4.0 * nu)
+        + (5.0 * z5 + 16.0 * z3 + 3.0 * z) / (96.0 * nu * nu)
+        + (3.0 * z7 + 19.0 * z5 + 17.0 * z3 - 15.0 * z) / (384.0 * nu.powi(3))
+        + (79.0 * z9 + 776.0 * z7 + 1482.0 * z5 - 1920.0 * z3 - 945.0 * z) / (92160.0 * nu.powi(4))
+}
+
 /// The t statistic of the quadratic term when y = a + b·x + c·x² is fitted (positive: the curve
 /// bends upwards). `None` with fewer than four points or a degenerate design.
 ///
@@ -208,5 +278,72 @@ mod tests {
         assert!(curvature_t(&[0.0, 1.0, 2.0], &[0.0, 1.0, 2.0]).is_none());
         assert!(median(&mut []).is_nan());
         assert_eq!(median(&mut [3.0, 1.0, 2.0, 10.0]), 2.5);
+    }
+
+    use traycast_rng::SplitMix;
+
+    /// One synthetic probe trace: a true line (0.2 K/s from 5 °C, a reading each second) plus AR(1)
+    /// noise with lag-1 correlation `rho` and marginal sd `sd`, seen through a first-order sensor
+    /// lag of `tau` seconds (0 for none).
+    fn trace(rng: &mut SplitMix, n: usize, rho: f64, sd: f64, tau: f64) -> (Vec<f64>, Vec<f64>) {
+        let slope = 0.2;
+        let mut noise = sd * rng.normal();
+        let innov = sd * (1.0 - rho * rho).sqrt();
+        let a = if tau > 0.0 { (-1.0 / tau).exp() } else { 0.0 };
+        let (mut x, mut y) = (Vec::new(), Vec::new());
+        let mut sensed = 5.0 - slope * tau + noise;
+        for t in 0..n {
+            noise = rho * noise + innov * rng.normal();
+            let truth = 5.0 + slope * t as f64 + noise;
+            sensed = a * sensed + (1.0 - a) * truth;
+            x.push(t as f64);
+            y.push(sensed);
+        }
+        (x, y)
+    }
+
+    /// Share of 95 % intervals (slope ± 1.96 SE) that hold the true slope, plain and HAC.
+    fn coverage(seed: u64, trials: usize, n: usize, rho: f64, tau: f64) -> (f64, f64) {
+        let mut rng = SplitMix::new(seed);
+        let (mut plain, mut hac) = (0, 0);
+        for _ in 0..trials {
+            let (x, y) = trace(&mut rng, n, rho, 0.3, tau);
+            let f = line(&x, &y).unwrap();
+            let h = slope_se_hac(&x, &y, &f).max(f.slope_se);
+            plain += usize::from((f.slope - 0.2).abs() <= 1.96 * f.slope_se);
+            hac += usize::from((f.slope - 0.2).abs() <= 1.96 * h);
+        }
+        (plain as f64 / trials as f64, hac as f64 / trials as f64)
+    }
+
+    /// AR(1) noise, alone and seen through a 3 s sensor lag: the white-noise error under-covers
+    /// badly (below 80 %), the HAC error's 95 % intervals cover at least 93 % of 2 000 seeded
+    /// traces, and with white noise it stays as narrow as the plain one (within 1 %).
+    #[test]
+    fn hac_errors_cover_under_autocorrelated_noise() {
+        for (n, rho, tau) in [
+            (120, 0.5, 0.0),
+            (60, 0.8, 0.0),
+            (200, 0.9, 0.0),
+            (60, 0.5, 3.0),
+        ] {
+            let (plain, hac) = coverage(7, 2000, n, rho, tau);
+            assert!(plain < 0.8, "n {n} ρ {rho} τ {tau}: plain covers {plain}");
+            assert!(hac >= 0.93, "n {n} ρ {rho} τ {tau}: HAC covers {hac}");
+        }
+        let (plain, hac) = coverage(7, 2000, 120, 0.0, 0.0);
+        assert!(
+            (plain - 0.95).abs() < 0.015 && (hac - plain).abs() < 0.01,
+            "{plain} {hac}"
+        );
+    }
+
+    /// Student's t 97.5 % quantiles as every statistics table prints them (e.g. NIST/SEMATECH
+    /// e-Handbook of Statistical Methods, table 1.3.6.7.2): ν = 5: 2.571, 10: 2.228, 30: 2.042.
+    #[test]
+    fn t_quantiles_match_the_table() {
+        for (nu, t) in [(5.0, 2.571), (10.0, 2.228), (30.0, 2.042)] {
+            assert!((t975(nu) - t).abs() < 0.002, "ν {nu}: {}", t975(nu));
+        }
     }
 }

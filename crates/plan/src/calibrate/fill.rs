@@ -1,12 +1,40 @@
 //! Estimates combined per cell and configuration (inverse variance, widened by the Birge ratio),
 //! and unmeasured food cells filled from the nearest measured cell of the same food or absorption
-//! class, with the spatial variation added to their error.
+//! class, with the prediction error of that fill (twice the semivariogram at its distance) added
+//! to their error. Probes in one cell during one run share the run's errors (the oven's power, the
+//! load's placement), so they count as one measurement, not as independent ones.
 
 use super::Estimate;
 use super::report::{Note, NoteKind};
 use crate::error::PlanError;
 use crate::model::Plan;
 use traycast_thermal::dielectric::LossClass;
+
+/// One estimate per run from `(estimate, run)` pairs of one cell: probes in the same run share its
+/// errors, so their mean keeps the root-mean-square of their errors (what perfectly correlated
+/// errors give), widened to their own spread's standard error when they disagree more.
+pub(super) fn one_per_run(est: &[(Estimate, usize)]) -> Vec<Estimate> {
+    let mut runs: Vec<usize> = est.iter().map(|e| e.1).collect();
+    runs.sort_unstable();
+    runs.dedup();
+    runs.into_iter()
+        .map(|run| {
+            let same: Vec<Estimate> = est.iter().filter(|e| e.1 == run).map(|e| e.0).collect();
+            let m = same.len() as f64;
+            let rate = same.iter().map(|e| e.rate).sum::<f64>() / m;
+            let rms = (same.iter().map(|e| e.se * e.se).sum::<f64>() / m).sqrt();
+            let spread = if same.len() > 1 {
+                (same.iter().map(|e| (e.rate - rate).powi(2)).sum::<f64>() / (m - 1.0) / m).sqrt()
+            } else {
+                0.0
+            };
+            Estimate {
+                rate,
+                se: rms.max(spread),
+            }
+        })
+        .collect()
+}
 
 /// Inverse-variance combination; returns the estimate and the largest deviation from it in
 /// standard errors (0 for one estimate). The error is widened by the Birge ratio when > 1.
@@ -143,13 +171,19 @@ pub(super) fn fill(
             .map(|&j| source[j].expect("measured").se.powi(2))
             .sum::<f64>()
             / m;
-        // Unknown spatial variation (a food with one measured cell): assume half the rate, 1 σ.
+        // The prediction error of taking a neighbour's value: Var(z(x₀) − z(x₁)) = 2γ(d), not
+        // γ(d), capped at twice the rates' variance (two independent draws). Unknown spatial
+        // variation (a food with one measured cell): assume half the rate, 1 σ.
         let g1 = if same_food { gamma1[k] } else { f64::NAN };
-        let cap = if same_food { variance[k] } else { f64::NAN };
+        let cap = if same_food {
+            2.0 * variance[k]
+        } else {
+            f64::NAN
+        };
         let spatial = if g1.is_nan() {
             (0.5 * rate).powi(2)
         } else {
-            (g1 * d).min(if cap.is_nan() { f64::INFINITY } else { cap })
+            (2.0 * g1 * d).min(if cap.is_nan() { f64::INFINITY } else { cap })
         };
         measured[i] = Some(Estimate {
             rate,
@@ -177,4 +211,28 @@ pub(super) fn fill(
         });
     }
     Ok(filled)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn e(rate: f64, se: f64) -> Estimate {
+        Estimate { rate, se }
+    }
+
+    /// Two probes in one cell during one run share that run's errors: together they are one
+    /// measurement with the same error, not √2 better; two runs are independent and combine by
+    /// inverse variance (σ/√2).
+    #[test]
+    fn probes_in_one_run_are_not_independent() {
+        let same_run = one_per_run(&[(e(0.20, 0.01), 0), (e(0.20, 0.01), 0)]);
+        assert_eq!(same_run.len(), 1);
+        assert!((combine(&same_run).0.se - 0.01).abs() < 1e-12);
+        let two_runs = one_per_run(&[(e(0.20, 0.01), 0), (e(0.20, 0.01), 1)]);
+        assert!((combine(&two_runs).0.se - 0.01 / 2f64.sqrt()).abs() < 1e-12);
+        // Probes that disagree more than their errors say: the spread's error wins.
+        let apart = one_per_run(&[(e(0.10, 0.001), 0), (e(0.30, 0.001), 0)]);
+        assert!((apart[0].rate - 0.2).abs() < 1e-12 && (apart[0].se - 0.1).abs() < 1e-12);
+    }
 }

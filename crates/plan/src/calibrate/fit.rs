@@ -133,6 +133,11 @@ pub fn fit_series(
                 f.residual_sd = QUANTISATION_SD_K;
                 f.slope_se = QUANTISATION_SD_K / sxx.sqrt();
             }
+            // A trace's residuals are autocorrelated: never narrower than the HAC error.
+            let hac = regression::slope_se_hac(&t, &y, &f);
+            if hac > f.slope_se {
+                f.slope_se = hac;
+            }
             f
         });
         result.used = inliers.len();

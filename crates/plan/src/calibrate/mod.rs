@@ -243,7 +243,9 @@ pub fn calibrate(
             if est.is_empty() {
                 continue;
             }
-            let combined = combine(&est.iter().map(|e| e.0).collect::<Vec<_>>());
+            let by_run: Vec<(Estimate, usize)> =
+                est.iter().map(|e| (e.0, runs.series[e.1].run)).collect();
+            let combined = combine(&fill::one_per_run(&by_run));
             let distinct_runs = {
                 let mut r: Vec<usize> = est.iter().map(|e| runs.series[e.1].run).collect();
                 r.sort_unstable();
