@@ -412,9 +412,10 @@ pub fn App() -> impl IntoView {
                     let judged = s.judged.map_or(String::new(), |j| format!("at its {} ({}); ", j.name(), j.place(p.tray.width)));
                     let verdict = if v.margin.is_finite() { format!("{words}{on} ({:+.1} {})", u.diff(v.margin), u.diff_symbol()) } else { words };
                     let range = |r: (f64, f64)| format!("{:.1}–{:.1} {}", u.temp(r.0), u.temp(r.1), u.symbol());
+                    let basis = e.bounds_from.clone().unwrap_or_default();
                     let spread = s.spread.as_ref().map(|sp| view! {
-                        <td class="spread" title="95 % from the maps' rate errors">{range(sp.coldest)}</td>
-                        <td class="spread" title="95 % from the maps' rate errors">{range(sp.mean)}</td>
+                        <td class="spread" title=basis.clone()>{range(sp.coldest)}</td>
+                        <td class="spread" title=basis>{range(sp.mean)}</td>
                     });
                     view! {
                         <tr class:unsafe=!v.safe>
@@ -435,7 +436,8 @@ pub fn App() -> impl IntoView {
                 let budget = p.oven.budget_s.map_or("no budget".to_string(), |b| format!("of {b:.0} s"));
                 view! {
                     <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
-                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 %"</th><th>"mean, 95 %"</th> })}<th>"in band"</th><th>"verdict, point judged, rule"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
+                    <p class="bounds-from">{e.bounds_from.clone().map(|b| format!("Verdicts are judged on {b}."))}</p>
+                    <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 % joint"</th><th>"mean, 95 % joint"</th> })}<th>"in band"</th><th>"verdict, point judged, rule"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
                     <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", u.diff_symbol())}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
                     <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
                     <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>
@@ -642,6 +644,8 @@ pub fn App() -> impl IntoView {
                 <label>"Standing time (s)"<input type="number" prop:value=move || plan.with(|p| p.oven.standing_s.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.oven.standing_s = v); } /></label>
                 <label title="0: the tray lets no energy through its base (the conservative default); 0.5: food heated equally from both faces">"Share of power from below (0–1)"<input type="number" min="0" max="1" step="0.05" prop:value=move || plan.with(|p| p.heating.from_below.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.heating.from_below = v); } /></label>
                 <label title="Heat the tray stores under each square metre of food; 0: an insulated bottom that stores none (about 1400 for a thin plastic tray)">"Tray heat capacity (J/(m²·K))"<input type="number" min="0" max="1000000" step="100" prop:value=move || plan.with(|p| p.heating.tray_capacity.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.heating.tray_capacity = v); } /></label>
+                <label title="How much weaker (or stronger) a real oven may heat than the maps say; the verdicts are judged on the worst (default 15 %: warm ovens lose output)">"Oven power varies by ± (%)"<input id="variation-power" type="number" min="0" max="50" step="1" prop:value=move || plan.with(|p| (100.0 * p.variation.oven_power).round().to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.variation.oven_power = v / 100.0); } /></label>
+                <label title="How much colder (or warmer) the food may start than planned; the verdicts are judged on the worst">{move || format!("Start varies by ± ({})", unit.get().diff_symbol())}<input id="variation-start" type="number" min="0" step="0.5" prop:value=move || plan.with(|p| unit.get().diff(p.variation.start_k).to_string()) on:change=move |ev| if let Some(v) = num(&ev) { let k = v / unit.get_untracked().diff(1.0); edit(&|p| p.variation.start_k = k); } /></label>
                 <h2>"Files"</h2>
                 <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_import_library /></label>
                 <label class="file">"Calibrate from heating runs (CSV)"<input id="import-runs" type="file" accept=".csv,text/csv" on:change=on_import_runs /></label>

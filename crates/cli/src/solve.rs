@@ -144,7 +144,8 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
         if let Some(sp) = &r.spread {
             let _ = writeln!(
                 s,
-                "    95 % from the maps' errors: coldest {:.1}–{:.1}, mean {:.1}–{:.1}, warmest {:.1}–{:.1} °C; verdict judged on these bounds (nominal: {} {:+.1} K)",
+                "    {}: coldest {:.1}–{:.1}, mean {:.1}–{:.1}, warmest {:.1}–{:.1} °C; verdict judged on these bounds (nominal: {} {:+.1} K)",
+                e.bounds_from.as_deref().unwrap_or("bounds"),
                 sp.coldest.0,
                 sp.coldest.1,
                 sp.mean.0,

@@ -126,7 +126,10 @@ fn calibrate_writes_a_library_with_errors_and_a_quality_report() {
     std::fs::write(&on_lib, serde_json::to_string(&doc).unwrap()).unwrap();
     let (code, table, err) = traycast(&["solve", &on_lib, "--library", &lib]);
     assert_eq!(code, 0, "{err}");
-    assert!(table.contains("95 % from the maps' errors"), "{table}");
+    assert!(
+        table.contains("95 % joint bounds: the maps' errors, oven power ±15 %, start ±2 K"),
+        "{table}"
+    );
     // A malformed file is refused naming the file and line, and writes nothing.
     let mut lines: Vec<String> = std::fs::read_to_string(&runs)
         .unwrap()

@@ -10,7 +10,9 @@
 //! - [`calibrate`]: runs → map library with standard errors, fill flags and a quality report,
 //!   with the least-squares line it fits ([`calibrate::fit_line`]).
 //! - [`evaluate`]: plan + maps → dwell solve → linear prediction → simulated time course →
-//!   errors, band coverage, coldest-point verdicts, unsteered baseline, feasibility diagnosis.
+//!   errors, band coverage, coldest-point verdicts with the kill and bounds joint over each item,
+//!   safety cards, unsteered baseline, feasibility diagnosis.
+//! - [`stats`]: normal and Student's t quantiles (the joint safety bounds, slope errors).
 //! - [`robustness`]: the plan's schedule with the foods placed one cell off.
 //! - [`wire`]: plan JSON, share links, schedule CSV — versioned boundary formats.
 //! - [`summary`]: the evaluation as one JSON object, shared by the command line and the workbench.
@@ -46,6 +48,7 @@ pub mod model;
 mod regression;
 pub mod robustness;
 pub mod runs;
+pub mod stats;
 pub mod summary;
 pub mod wire;
 

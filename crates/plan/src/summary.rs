@@ -13,6 +13,7 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
         "total_s": e.total_s,
         "status": e.status.as_str(),
         "kkt_residual": e.kkt_residual,
+        "variation": { "oven_power": plan.variation.oven_power, "start_k": plan.variation.start_k },
         "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
             "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
             "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
@@ -31,6 +32,7 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
             "log_reduction_required": r.verdict.kill.map(|k| k.target.logs),
             "safety_card": crate::evaluate::SafetyCard::of(plan, e, k).to_json(),
             "verdict_on": if r.spread.is_some() { "95 % bounds" } else { "nominal temperatures" },
+            "bounds_from": e.bounds_from,
             "spread": r.spread.as_ref().map(|s| serde_json::json!({
                 "coldest_c": [finite(&s.coldest.0), finite(&s.coldest.1)],
                 "mean_c": [finite(&s.mean.0), finite(&s.mean.1)],

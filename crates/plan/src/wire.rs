@@ -1,13 +1,15 @@
-//! File and link formats of our own: plan JSON ("traycast-plan" version 4; versions 1 to 3 are
-//! read), the share link ("tc4." + URL-safe base64 of deflated postcard bytes, a trailer after
-//! the plan carrying the library's content hash and how power and heat cross the tray; "tc3.",
-//! "tc2." and "tc1." links are read), and the controller schedule CSV.
+//! File and link formats of our own: plan JSON ("traycast-plan" version 5; versions 1 to 4 are
+//! read), the share link ("tc5." + URL-safe base64 of deflated postcard bytes, a trailer after
+//! the plan carrying the library's content hash, how power and heat cross the tray, and the
+//! plan's variation; "tc4." to "tc1." links are read), and the controller schedule CSV.
 //!
 //! These types are the boundary: versioned, separate from [`crate::model`], and every field is
 //! validated on the way in. Untrusted input becomes a [`PlanError`], never a panic.
 
 use crate::error::{Place, PlanError};
-use crate::model::{FoodItem, Heating, MapSource, Oven, Plan, Sequencing, TraySize, Zone};
+use crate::model::{
+    FoodItem, Heating, MapSource, Oven, Plan, Sequencing, TraySize, Variation, Zone,
+};
 use base64::Engine;
 use serde::{Deserialize, Serialize};
 use traycast_thermal::safety::CAUTIONS;
@@ -15,13 +17,16 @@ use traycast_thermal::schedule::Schedule;
 
 const FORMAT: &str = "traycast-plan";
 /// The version written. Version 2 added the library's content hash, version 3 how power enters
-/// the food (`heating`), version 4 the tray's heat capacity and whether each item is covered;
-/// older versions are still read (with the defaults for what they lack).
-const VERSION: u32 = 4;
+/// the food (`heating`), version 4 the tray's heat capacity and whether each item is covered,
+/// version 5 the plan's variation (oven power, start temperature); older versions are still read
+/// (with the defaults for what they lack).
+const VERSION: u32 = 5;
 /// Versions read.
-const READS: [u32; 4] = [1, 2, 3, 4];
+const READS: [u32; 5] = [1, 2, 3, 4, 5];
 /// Prefix of a share link's payload (format tag and version).
-pub const LINK_TAG: &str = "tc4.";
+pub const LINK_TAG: &str = "tc5.";
+/// The fourth link format, still read: a trailer without the variation.
+pub const LINK_TAG_V4: &str = "tc4.";
 /// The third link format, still read: items without a cover, a trailer without the tray.
 pub const LINK_TAG_V3: &str = "tc3.";
 /// The second link format, still read: its trailer has only the library hash.
@@ -63,6 +68,18 @@ struct PlanFile {
     /// Since version 3; absent in older files, which get the default.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     heating: Option<HeatingDoc>,
+    /// Since version 5; absent in older files, which get the default.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    variation: Option<VariationDoc>,
+}
+
+/// How far the oven and the food may stray from the plan (version 5).
+#[derive(Serialize, Deserialize, Debug, Clone, Copy, PartialEq)]
+struct VariationDoc {
+    /// Oven power, ± fraction.
+    oven_power: f64,
+    /// Start temperature, ± K.
+    start_k: f64,
 }
 
 /// How power and heat cross the tray (version 3; the tray's heat capacity since version 4).
@@ -75,11 +92,21 @@ struct HeatingDoc {
     tray_capacity: f64,
 }
 
-/// What a version-4 link carries after the plan document (postcard is positional, so additions go
+/// What a version-5 link carries after the plan document (postcard is positional, so additions go
 /// in a trailer: version-1 links lack it, version-2 links have only the hash, version-3 links
-/// lack the tray).
+/// lack the tray, version-4 links the variation).
 #[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
 struct LinkTrailer {
+    library_hash: Option<u64>,
+    from_below: f64,
+    tray_capacity: f64,
+    oven_power: f64,
+    start_k: f64,
+}
+
+/// The version-4 trailer.
+#[derive(Serialize, Deserialize, Debug, Clone, PartialEq)]
+struct LinkTrailerV4 {
     library_hash: Option<u64>,
     from_below: f64,
     tray_capacity: f64,
@@ -404,6 +431,7 @@ impl TryFrom<PlanDoc> for Plan {
                 .collect(),
             zone,
             heating: Heating::default(),
+            variation: Variation::default(),
             oven: Oven {
                 power_w: d.oven.power_w,
                 configs: d.oven.configs as usize,
@@ -434,6 +462,10 @@ pub fn to_json(plan: &Plan) -> String {
             from_below: plan.heating.from_below,
             tray_capacity: plan.heating.tray_capacity,
         }),
+        variation: Some(VariationDoc {
+            oven_power: plan.variation.oven_power,
+            start_k: plan.variation.start_k,
+        }),
     };
     serde_json::to_string_pretty(&file).expect("plans serialise")
 }
@@ -455,8 +487,14 @@ pub fn from_json(text: &str) -> Result<Plan, PlanError> {
     if let Some(h) = file.heating {
         plan.heating.from_below = h.from_below;
         plan.heating.tray_capacity = h.tray_capacity;
-        plan.validate()?;
     }
+    if let Some(v) = file.variation {
+        plan.variation = Variation {
+            oven_power: v.oven_power,
+            start_k: v.start_k,
+        };
+    }
+    plan.validate()?;
     Ok(plan)
 }
 
@@ -467,6 +505,8 @@ pub fn to_link(plan: &Plan) -> String {
         library_hash: library_hash(plan),
         from_below: plan.heating.from_below,
         tray_capacity: plan.heating.tray_capacity,
+        oven_power: plan.variation.oven_power,
+        start_k: plan.variation.start_k,
     };
     bytes.extend(postcard::to_allocvec(&trailer).expect("trailers serialise"));
     let packed = miniz_oxide::deflate::compress_to_vec(&bytes, 9);
@@ -486,10 +526,10 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
             link.len()
         )));
     }
-    let tagged = [LINK_TAG, LINK_TAG_V3, LINK_TAG_V2, LINK_TAG_V1]
+    let tagged = [LINK_TAG, LINK_TAG_V4, LINK_TAG_V3, LINK_TAG_V2, LINK_TAG_V1]
         .into_iter()
         .enumerate()
-        .find_map(|(k, tag)| link.strip_prefix(tag).map(|body| (body, 4 - k)));
+        .find_map(|(k, tag)| link.strip_prefix(tag).map(|body| (body, 5 - k)));
     let (body, version) = match tagged {
         Some(found) => found,
         None => {
@@ -526,28 +566,31 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
             postcard::take_from_bytes(&bytes).map_err(unreadable)?;
         (old.upgrade(), rest)
     };
-    let defaults = Heating::default();
+    let (defaults, spread) = (Heating::default(), Variation::default());
+    let older = |library_hash, from_below, tray_capacity| LinkTrailer {
+        library_hash,
+        from_below,
+        tray_capacity,
+        oven_power: spread.oven_power,
+        start_k: spread.start_k,
+    };
     let trailer = match version {
-        1 => LinkTrailer {
-            library_hash: None,
-            from_below: defaults.from_below,
-            tray_capacity: defaults.tray_capacity,
-        },
+        1 => older(None, defaults.from_below, defaults.tray_capacity),
         2 => {
             let old: LinkTrailerV2 = postcard::from_bytes(rest).map_err(unreadable)?;
-            LinkTrailer {
-                library_hash: old.library_hash,
-                from_below: defaults.from_below,
-                tray_capacity: defaults.tray_capacity,
-            }
+            older(
+                old.library_hash,
+                defaults.from_below,
+                defaults.tray_capacity,
+            )
         }
         3 => {
             let old: LinkTrailerV3 = postcard::from_bytes(rest).map_err(unreadable)?;
-            LinkTrailer {
-                library_hash: old.library_hash,
-                from_below: old.from_below,
-                tray_capacity: defaults.tray_capacity,
-            }
+            older(old.library_hash, old.from_below, defaults.tray_capacity)
+        }
+        4 => {
+            let old: LinkTrailerV4 = postcard::from_bytes(rest).map_err(unreadable)?;
+            older(old.library_hash, old.from_below, old.tray_capacity)
         }
         _ => postcard::from_bytes(rest).map_err(unreadable)?,
     };
@@ -555,6 +598,10 @@ pub fn from_link(link: &str) -> Result<Plan, PlanError> {
     let mut plan = Plan::try_from(doc).map_err(in_link)?;
     plan.heating.from_below = trailer.from_below;
     plan.heating.tray_capacity = trailer.tray_capacity;
+    plan.variation = Variation {
+        oven_power: trailer.oven_power,
+        start_k: trailer.start_k,
+    };
     plan.validate().map_err(in_link)?;
     Ok(with_hash(plan, trailer.library_hash))
 }

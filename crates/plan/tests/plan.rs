@@ -406,7 +406,7 @@ fn tray_capacity_and_covers_travel_and_older_plans_still_open() {
     assert!(json.contains("\"covered\": true"), "{json}");
     assert_eq!(wire::from_json(&json).unwrap(), plan);
     let link = wire::to_link(&plan);
-    assert!(link.starts_with("tc4."));
+    assert!(link.starts_with("tc5."));
     assert_eq!(wire::from_link(&link).unwrap(), plan);
     let bad = json.replace("\"tray_capacity\": 1400.0", "\"tray_capacity\": -1.0");
     assert_eq!(
@@ -426,6 +426,33 @@ fn tray_capacity_and_covers_travel_and_older_plans_still_open() {
     assert_eq!(v3_file.heating.from_below, 0.25);
     assert_eq!(v3_file.heating.tray_capacity, 0.0);
     assert!(v3_file.items.iter().all(|i| !i.covered));
+    // Version 4 (before the variation): the tray and the cover travel; the variation is the
+    // default.
+    let v4_file = wire::from_json(&fixture("side-by-side-v4.json")).unwrap();
+    let v4_link = wire::from_link(fixture("side-by-side-v4.link").trim()).unwrap();
+    assert_eq!(v4_file, v4_link);
+    assert_eq!(v4_file.heating.tray_capacity, 1400.0);
+    assert!(v4_file.items[0].covered && !v4_file.items[1].covered);
+    assert_eq!(
+        v4_file.variation,
+        traycast_plan::model::Variation::default()
+    );
+}
+
+/// The plan's variation (oven power, start temperature) travels in files and links, and a value
+/// out of range is refused at its field.
+#[test]
+fn the_variation_travels_and_is_checked() {
+    let mut plan = demos::demo("side-by-side").unwrap();
+    plan.variation.oven_power = 0.1;
+    plan.variation.start_k = 3.0;
+    assert_eq!(wire::from_json(&wire::to_json(&plan)).unwrap(), plan);
+    assert_eq!(wire::from_link(&wire::to_link(&plan)).unwrap(), plan);
+    let bad = wire::to_json(&plan).replace("\"oven_power\": 0.1", "\"oven_power\": 0.9");
+    assert_eq!(
+        wire::from_json(&bad).unwrap_err().place,
+        Place::from("variation.oven_power")
+    );
 }
 
 /// The plan names its library: a library of another name is refused, never solved on silently;
@@ -760,7 +787,9 @@ fn a_library_above_the_oven_rating_is_named() {
 /// (its cell and depth hold the verdict's temperature), cold holding at its warmest point.
 #[test]
 fn verdicts_say_which_point_they_judged_and_where() {
-    let plan = demos::demo("lunch-tray").unwrap();
+    let mut plan = demos::demo("lunch-tray").unwrap();
+    // Nominal temperatures: the bounds are checked on their own below.
+    plan.variation = traycast_plan::model::Variation::NONE;
     let e = evaluate::evaluate(&plan, None, Options::default()).unwrap();
     for (it, s) in plan.items.iter().zip(&e.items) {
         let j = s.judged.expect("every item has cells");
@@ -792,7 +821,8 @@ fn verdicts_say_which_point_they_judged_and_where() {
 /// the cell's coldest-layer history, and the JSON summary and the safety card carry the same.
 #[test]
 fn each_verdict_carries_the_kill_at_the_coldest_point() {
-    let plan = demos::demo("lunch-tray").unwrap();
+    let mut plan = demos::demo("lunch-tray").unwrap();
+    plan.variation = traycast_plan::model::Variation::NONE;
     let e = evaluate::evaluate(&plan, None, Options::default()).unwrap();
     let json = traycast_plan::summary::to_json(&plan, &e);
     for (k, (it, s)) in plan.items.iter().zip(&e.items).enumerate() {
@@ -836,5 +866,40 @@ fn each_verdict_carries_the_kill_at_the_coldest_point() {
             card.lines(&|t| format!("{t}"), &|d| format!("{d}")).len(),
             5
         );
+    }
+}
+
+/// The plan's variation (by default the oven ±15 % and the start ±2 K) gives bounds even on maps
+/// without errors, and the verdict is judged on them: the coldest point's lower bound sits below
+/// the nominal coldest point, further for a wider variation, and so does the kill.
+#[test]
+fn the_variation_widens_the_bounds_the_verdict_is_judged_on() {
+    use traycast_plan::model::Variation;
+    let mut plan = demos::demo("lunch-tray").unwrap();
+    plan.variation = Variation::NONE;
+    let nominal = evaluate::evaluate(&plan, None, Options::default()).unwrap();
+    assert!(nominal.bounds.is_none() && nominal.items.iter().all(|s| s.spread.is_none()));
+    let mut run = |v: Variation| {
+        plan.variation = v;
+        evaluate::evaluate(&plan, None, Options::default()).unwrap()
+    };
+    let some = run(Variation::default());
+    let more = run(Variation {
+        oven_power: 0.3,
+        start_k: 5.0,
+    });
+    for k in 0..plan.items.len() {
+        let (n, a, b) = (&nominal.items[k], &some.items[k], &more.items[k]);
+        let spread = a.spread.as_ref().expect("bounds with variation");
+        assert_eq!(spread.nominal.coldest, n.verdict.coldest);
+        if n.verdict.binding.minimum {
+            assert!(a.verdict.coldest < n.verdict.coldest, "item {k}");
+            assert!(b.verdict.coldest < a.verdict.coldest, "item {k}");
+        } else {
+            assert!(a.verdict.warmest > n.verdict.warmest, "item {k}");
+        }
+        if let (Some(kn), Some(ka)) = (n.verdict.kill, a.verdict.kill) {
+            assert!(ka.achieved <= kn.achieved, "item {k}");
+        }
     }
 }

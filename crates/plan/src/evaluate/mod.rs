@@ -39,7 +39,7 @@ pub use prepared::Prepared;
 
 use crate::error::PlanError;
 use crate::library::MapLibrary;
-use crate::model::{Plan, Sequencing};
+use crate::model::{Plan, Sequencing, Variation};
 use course::course_warnings;
 use maps::maps_hash;
 use problem::{predict, quantise};
@@ -187,10 +187,17 @@ impl Evaluator {
         }
         warnings.extend(maps.warnings());
         warnings.extend(over_rating(plan, maps, &self.mats));
-        let bounds = maps
-            .loaded_se
-            .as_ref()
-            .map(|se| cell_bounds(plan, maps, se, &dwell, &self.mats, &course));
+        // Bounds when the maps carry errors or the plan allows for variation.
+        let bounds = (maps.loaded_se.is_some() || plan.variation != Variation::NONE).then(|| {
+            cell_bounds(
+                plan,
+                maps,
+                maps.loaded_se.as_deref(),
+                &dwell,
+                &self.mats,
+                &course,
+            )
+        });
         let zones = self.zone_summaries(plan, prep, sol, &dwell, &error_linear, &error_simulated);
         let items =
             verdicts::item_summaries(plan, prep, &course, &error_simulated, bounds.as_ref());
@@ -212,6 +219,9 @@ impl Evaluator {
             warnings,
             cap_excess,
             refinement: None,
+            bounds_from: bounds
+                .is_some()
+                .then(|| report::bounds_words(maps.loaded_se.is_some(), &plan.variation)),
             bounds,
             cautions: &safety::CAUTIONS,
         })

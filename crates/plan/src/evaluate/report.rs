@@ -39,7 +39,7 @@ pub struct ItemSummary {
     pub verdict: Verdict,
     /// Water evaporated, g.
     pub moisture_g: f64,
-    /// The 95 % spread from the maps' rate uncertainties, when the maps carry them.
+    /// Where the item's temperatures lie within the bounds (see [`Evaluation::bounds_from`]).
     pub spread: Option<Spread>,
     /// Where the verdict's binding rule was judged (None for an item with no cells).
     pub judged: Option<JudgedPoint>,
@@ -91,7 +91,8 @@ pub struct Spread {
     pub nominal: Verdict,
 }
 
-/// Per-cell 95 % bounds of the temperatures after standing, °C (NaN for empty cells).
+/// Per-cell bounds of the temperatures after standing, joint over each item at 95 %, °C (NaN for
+/// empty cells).
 #[derive(Clone, Debug, PartialEq)]
 pub struct CellBounds {
     /// Lower bounds.
@@ -160,8 +161,12 @@ pub struct Evaluation {
     pub cap_excess: f64,
     /// The refinement pass, if requested.
     pub refinement: Option<Refinement>,
-    /// Per-cell 95 % bounds after standing, when the maps carry standard errors.
+    /// Per-cell bounds after standing, joint over each item at 95 %, when the maps carry standard
+    /// errors or the plan allows for variation.
     pub bounds: Option<CellBounds>,
+    /// What the bounds allow for, in words ("95 % joint bounds: the maps' errors, oven power
+    /// ±15 %, start ±2 K"); None without bounds.
+    pub bounds_from: Option<String>,
     /// The usual cautions.
     pub cautions: &'static [&'static str],
 }
@@ -238,4 +243,20 @@ pub fn logs(achieved: f64) -> String {
     } else {
         format!("{achieved:.1}")
     }
+}
+
+/// What bounds allow for, in words: the maps' errors (when they carry any), the oven's power and
+/// the start temperature (when the plan allows for them).
+pub fn bounds_words(maps_have_errors: bool, v: &crate::model::Variation) -> String {
+    let mut parts = Vec::new();
+    if maps_have_errors {
+        parts.push("the maps' errors".to_string());
+    }
+    if v.oven_power > 0.0 {
+        parts.push(format!("oven power ±{:.0} %", 100.0 * v.oven_power));
+    }
+    if v.start_k > 0.0 {
+        parts.push(format!("start ±{} K", v.start_k));
+    }
+    format!("95 % joint bounds: {}", parts.join(", "))
 }

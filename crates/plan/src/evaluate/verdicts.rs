@@ -1,56 +1,90 @@
-//! The food-safety side of an evaluation: per-cell 95 % bounds from the maps' standard errors, and
-//! each item's summary with its coldest-point verdict (on the bounds when the maps carry errors).
+//! The food-safety side of an evaluation: per-cell bounds, joint over each item, from the maps'
+//! standard errors and the plan's variation, and each item's summary with its verdict (judged on
+//! the bounds when there are any).
 
 use super::maps::PlanMaps;
 use super::prepared::Prepared;
-use super::report::{CellBounds, ItemSummary, JudgedPoint, Spread, Z95};
+use super::report::{CellBounds, ItemSummary, JudgedPoint, Spread};
 use crate::model::Plan;
-use traycast_thermal::composition::LATENT_VAPORISATION;
+use crate::stats;
+use traycast_thermal::composition::{BOILING_POINT, LATENT_VAPORISATION};
 use traycast_thermal::material::Material;
 use traycast_thermal::safety;
 use traycast_thermal::simulate::TimeCourse;
 
-/// Per-cell 95 % bounds after standing from the rates' standard errors.
+/// Per-cell bounds after standing, joint over each item: with 95 % confidence every cell of an item
+/// (and so its coldest and its warmest point) lies within its bounds.
 ///
-/// The linear rise Σ_c r_ic·x_c has the standard deviation √(Σ_c (σ_ic·x_c)²) when the rate errors
-/// are independent; its relative size is applied to the energy the cell's coldest point absorbed
-/// over the whole course (its enthalpy gain plus the water that layer evaporated), and the bounds are read back through
-/// the food's enthalpy curve: a cell whose energy may fall short ends its lower bound on the thaw
-/// plateau rather than below it, and a boiling cell first loses the energy that only evaporated
-/// water. Conduction between cells (which averages errors out) is neglected, which widens the
-/// bounds; upper bounds stop at 100 °C. Lower bounds belong to each cell's coldest point, upper
-/// bounds to its hottest point (what a cold-holding rule is judged on); the hottest point's energy
-/// leaves out what it evaporated, which only matters above the boiling point, where the bound is
-/// clamped anyway.
+/// The rates' errors: the linear rise Σ_c r_ic·x_c has the standard deviation √(Σ_c (σ_ic·x_c)²)
+/// when the rate errors are independent (`se`; none for maps without errors). Its relative size,
+/// at the Bonferroni quantile z = Φ⁻¹(1 − 0.025/n) over the item's n cells (valid whatever the
+/// cells' correlation: the least over the cells of per-cell 97.5 % bounds is not a bound on the
+/// coldest point), plus the plan's oven-power variation, is taken off (or added to) the energy the
+/// cell's coldest point absorbed over the whole course (its enthalpy gain plus the water that layer
+/// evaporated). The start-temperature variation takes the enthalpy between the start and the start
+/// ± the variation off (or adds it). The bounds are read back through the food's enthalpy curve: a
+/// cell whose energy may fall short ends its lower bound on the thaw plateau rather than below it,
+/// and a cell that boiled first loses the energy that only evaporated water (water evaporated below
+/// boiling buffers nothing). Conduction between cells
+/// (which averages errors out) is neglected, which widens the bounds; upper bounds stop at
+/// 100 °C. Lower bounds belong to each cell's coldest point, upper bounds to its hottest point
+/// (what a cold-holding rule is judged on); the hottest point's energy leaves out what it
+/// evaporated, which only matters above the boiling point, where the bound is clamped anyway.
 pub fn cell_bounds(
     plan: &Plan,
     maps: &PlanMaps,
-    se: &[f64],
+    se: Option<&[f64]>,
     dwell: &[f64],
     mats: &[Material],
     course: &TimeCourse,
 ) -> CellBounds {
     let n = maps.cells;
+    let mut count = vec![0usize; plan.items.len()];
+    for i in 0..n {
+        if let Some(k) = plan.item_at(i) {
+            count[k] += 1;
+        }
+    }
+    let z: Vec<f64> = count
+        .iter()
+        .map(|&c| stats::normal_quantile(1.0 - 0.025 / c.max(1) as f64))
+        .collect();
+    let (power, start_k) = (plan.variation.oven_power, plan.variation.start_k);
     let mut lower = vec![f64::NAN; n];
     let mut upper = vec![f64::NAN; n];
     for i in 0..n {
         let Some(k) = plan.item_at(i) else { continue };
-        let (mut rise, mut var) = (0.0, 0.0);
-        for (c, x) in dwell.iter().enumerate() {
-            rise += maps.loaded[c * n + i] * x;
-            var += (se[c * n + i] * x).powi(2);
-        }
-        let rel = if rise > 0.0 { var.sqrt() / rise } else { 0.0 };
+        let rel = match se {
+            Some(se) => {
+                let (mut rise, mut var) = (0.0, 0.0);
+                for (c, x) in dwell.iter().enumerate() {
+                    rise += maps.loaded[c * n + i] * x;
+                    var += (se[c * n + i] * x).powi(2);
+                }
+                if rise > 0.0 { var.sqrt() / rise } else { 0.0 }
+            }
+            None => 0.0,
+        };
+        let off = z[k] * rel + power;
         let m = &mats[k];
+        let start = plan.items[k].start_c;
         let after = course.after_standing[i];
-        let evaporated = LATENT_VAPORISATION * course.coldest_evaporated[i];
+        // Water boiled off is energy a weaker oven takes away first; water that evaporated from a
+        // surface below boiling would have left anyway, so it buffers nothing.
+        let evaporated = if course.peak[i] >= BOILING_POINT - 0.5 {
+            LATENT_VAPORISATION * course.coldest_evaporated[i]
+        } else {
+            0.0
+        };
         let h = m.enthalpy(after);
-        let absorbed = h - m.enthalpy(plan.items[k].start_c) + evaporated;
-        let de = Z95 * rel * absorbed.abs();
+        let absorbed = h - m.enthalpy(start) + evaporated;
+        let colder_start = m.enthalpy(start) - m.enthalpy(start - start_k);
+        let de = off * absorbed.abs() + colder_start;
         lower[i] = m.state((h + evaporated - de).min(h), &mut 0).t.min(after);
         let hot = course.hottest_after_standing[i];
         let h_hot = m.enthalpy(hot);
-        let de_hot = Z95 * rel * (h_hot - m.enthalpy(plan.items[k].start_c)).abs();
+        let warmer_start = m.enthalpy(start + start_k) - m.enthalpy(start);
+        let de_hot = off * (h_hot - m.enthalpy(start)).abs() + warmer_start;
         upper[i] = m
             .state(h_hot + de_hot, &mut 0)
             .t

@@ -17,6 +17,9 @@ pub struct RunRecipe {
     pub lag_s: f64,
     /// Reading noise, K (1 σ); readings are rounded to 0.1 K as a logger would.
     pub noise_k: f64,
+    /// Correlation of the noise between successive readings (AR(1), 0 for white noise): a
+    /// probe's drift and the food's own fluctuations make real traces persistent.
+    pub noise_rho: f64,
     /// Configurations run a second time (for the repeatability check).
     pub repeat: Vec<usize>,
     /// Seed of the noise.
@@ -31,6 +34,7 @@ impl Default for RunRecipe {
             probe_every: 2,
             lag_s: 3.0,
             noise_k: 0.15,
+            noise_rho: 0.0,
             repeat: vec![0],
             seed: 1,
         }
@@ -80,8 +84,8 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
     });
     let mut rng = traycast_rng::SplitMix::new(recipe.seed);
     let mut out = format!(
-        "# traycast-runs 1\n# name: Illustrative bench runs, {} (invented data)\n# each configuration heated alone for {} s, probes every {} cell(s), sensor lag {} s, noise {} K\nrun,config,time_s,row,col,temp_c\n",
-        plan.name, recipe.seconds, every, recipe.lag_s, recipe.noise_k
+        "# traycast-runs 1\n# name: Illustrative bench runs, {} (invented data)\n# each configuration heated alone for {} s, probes every {} cell(s), sensor lag {} s, noise {} K (reading-to-reading correlation {})\nrun,config,time_s,row,col,temp_c\n",
+        plan.name, recipe.seconds, every, recipe.lag_s, recipe.noise_k, recipe.noise_rho
     );
     if !thawed.is_empty() {
         out.insert_str(
@@ -96,7 +100,14 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
         let mut dwell = vec![0.0; plan.oven.configs];
         dwell[c] = recipe.seconds;
         let course = time_course(plan, &maps, &mats, &Schedule::blocks(&dwell), &settings)?;
+        let rho = recipe.noise_rho.clamp(0.0, 0.99);
         for &i in &probes {
+            // White noise draws exactly what it always drew: one normal per reading.
+            let mut noise = if rho > 0.0 {
+                recipe.noise_k * rng.normal()
+            } else {
+                0.0
+            };
             let mut seen = course.frames[0][i];
             let (mut last_t, mut last_temp) = (course.times[0], course.frames[0][i]);
             for (t, frame) in course.times.iter().zip(&course.frames) {
@@ -110,7 +121,8 @@ pub fn heating_runs(plan: &Plan, recipe: &RunRecipe) -> Result<String, crate::Pl
                         temp - slope * tau + (seen - last_temp + slope * tau) * (-dt / tau).exp();
                 }
                 (last_t, last_temp) = (*t, temp);
-                let reading = ((seen + recipe.noise_k * rng.normal()) * 10.0).round() / 10.0;
+                noise = rho * noise + (1.0 - rho * rho).sqrt() * recipe.noise_k * rng.normal();
+                let reading = ((seen + noise) * 10.0).round() / 10.0;
                 out.push_str(&format!("{id},{c},{t},{},{},{reading:.1}\n", i / w, i % w));
             }
         }
