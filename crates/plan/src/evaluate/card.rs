@@ -74,8 +74,12 @@ impl SafetyCard {
         }
     }
 
-    /// Every card of an evaluation, in item order.
+    /// Every card of an evaluation, in item order (none when the evaluation belongs to a plan
+    /// with other items: a front end may hold a result while the next one is computed).
     pub fn all(plan: &Plan, e: &Evaluation) -> Vec<SafetyCard> {
+        if e.items.len() != plan.items.len() {
+            return Vec::new();
+        }
         (0..e.items.len())
             .map(|k| SafetyCard::of(plan, e, k))
             .collect()
