@@ -50,6 +50,8 @@ pub(super) struct Model<'a> {
     power: Vec<f64>,
     hint: Vec<usize>,
     pairs: Vec<Pair>,
+    /// The two nodes of each pair, compact: what the flux loop reads every sub-step.
+    ends: Vec<[u32; 2]>,
     /// Per node: side area (m²) facing a held edge, and that edge's temperature.
     edge_area: Vec<f64>,
     edge_temp: Vec<f64>,
@@ -107,6 +109,7 @@ impl<'a> Model<'a> {
             power: vec![],
             hint: vec![],
             pairs: vec![],
+            ends: vec![],
             edge_area: vec![],
             edge_temp: vec![],
             top: vec![],
@@ -182,6 +185,7 @@ impl<'a> Model<'a> {
         m.filled = filled;
         m.connect();
         m.cond = vec![0.0; m.pairs.len()];
+        m.ends = m.pairs.iter().map(|p| [p.a as u32, p.b as u32]).collect();
         m.update_state();
         m
     }
@@ -386,10 +390,11 @@ impl<'a> Model<'a> {
     fn substep(&mut self, dt: f64, heating: bool) {
         let dx = self.load.tray.cell_size;
         self.flux.iter_mut().for_each(|f| *f = 0.0);
-        for (p, g) in self.pairs.iter().zip(&self.cond) {
-            let q = g * (self.temp[p.b] - self.temp[p.a]);
-            self.flux[p.a] += q;
-            self.flux[p.b] -= q;
+        for (&[a, b], g) in self.ends.iter().zip(&self.cond) {
+            let (a, b) = (a as usize, b as usize);
+            let q = g * (self.temp[b] - self.temp[a]);
+            self.flux[a] += q;
+            self.flux[b] -= q;
         }
         for (c, &cell) in self.filled.iter().enumerate().take(self.tray_cap.len()) {
             let bottom = self.first[cell] + self.layers[cell] - 1;
@@ -431,7 +436,7 @@ impl<'a> Model<'a> {
             if heating {
                 q += self.power[i];
             }
-            self.energy[i] += dt * q / 1000.0;
+            self.energy[i] += dt * q * 1e-3; // W·s → kJ
             // Evaporation below boiling from an uncovered surface: the water leaves with its
             // enthalpy and takes its latent heat.
             if self.open[i] && self.water_left[i] > 0.0 && self.temp[i] < BOILING_POINT {

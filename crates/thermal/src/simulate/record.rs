@@ -65,32 +65,6 @@ impl Columns {
         }
         v
     }
-
-    /// Only the view asked for (what each frame records), without the rest of [`Columns::of`].
-    fn view_of(m: &Model, view: View) -> Vec<f64> {
-        let mut out = vec![f64::NAN; m.load.tray.cells()];
-        for &i in &m.filled {
-            let nodes = m.nodes(i);
-            out[i] = match view {
-                View::Surface => m.temp[nodes.start],
-                View::Coldest => m.temp[nodes].iter().copied().fold(f64::INFINITY, f64::min),
-                View::Mean => {
-                    let (mut sum, mut mass) = (0.0, 0.0);
-                    for node in nodes {
-                        sum += m.temp[node] * m.mass[node];
-                        mass += m.mass[node];
-                    }
-                    // A column that boiled away entirely holds at the boiling point.
-                    if mass > 0.0 {
-                        sum / mass
-                    } else {
-                        BOILING_POINT
-                    }
-                }
-            };
-        }
-        out
-    }
 }
 
 pub(super) struct Recorder {
@@ -119,54 +93,88 @@ impl Recorder {
         }
     }
 
+    /// Records a frame at `t` (outside the step cadence: the end of heating or standing).
     pub fn record(&mut self, t: f64, m: &Model) {
-        self.times.push(t);
-        self.frames.push(Columns::view_of(m, self.view));
-        let k = self.items.len();
-        let (mut lo, mut hi) = (vec![f64::INFINITY; k], vec![f64::NEG_INFINITY; k]);
-        let (mut sum, mut mass) = (vec![0.0; k], vec![0.0; k]);
-        for &i in &m.filled {
-            let it = m.load.cells[i].expect("filled").item;
-            for node in m.nodes(i) {
-                lo[it] = lo[it].min(m.temp[node]);
-                hi[it] = hi[it].max(m.temp[node]);
-                sum[it] += m.temp[node] * m.mass[node];
-                mass[it] += m.mass[node];
-            }
-        }
-        // An item that boiled away entirely has no mass left: its mean is the boiling point.
-        for it in 0..k {
-            if mass[it] == 0.0 && lo[it].is_finite() {
-                sum[it] = BOILING_POINT;
-                mass[it] = 1.0;
-            }
-        }
-        for (it, curve) in self.items.iter_mut().enumerate() {
-            let empty = mass[it] == 0.0;
-            curve.min.push(if empty { f64::NAN } else { lo[it] });
-            curve.max.push(if empty { f64::NAN } else { hi[it] });
-            curve
-                .mean
-                .push(if empty { f64::NAN } else { sum[it] / mass[it] });
-        }
+        self.scan(m, None, Some(t));
     }
 
     /// Follows every step: each cell's peak and coldest layer, and a frame when one is due.
     pub fn track(&mut self, t: f64, m: &Model, every: f64) {
-        self.trace_times.push(t);
-        for &i in &m.filled {
-            let mut lo = f64::INFINITY;
-            for node in m.nodes(i) {
-                self.peak[i] = self.peak[i].max(m.temp[node]);
-                lo = lo.min(m.temp[node]);
-            }
-            self.coldest_trace[i].push(lo);
-        }
-        if t + 1e-9 >= self.next {
-            self.record(t, m);
+        let due = t + 1e-9 >= self.next;
+        self.scan(m, Some(t), due.then_some(t));
+        if due {
             while self.next <= t + 1e-9 {
                 self.next += every;
             }
+        }
+    }
+
+    /// One pass over every node: with `step`, each cell's peak and coldest layer at that instant;
+    /// with `frame`, the frame's view of each cell and each item's curves.
+    fn scan(&mut self, m: &Model, step: Option<f64>, frame: Option<f64>) {
+        if let Some(t) = step {
+            self.trace_times.push(t);
+        }
+        let k = self.items.len();
+        let mut view = Vec::new();
+        let (mut lo_k, mut hi_k) = (Vec::new(), Vec::new());
+        let (mut sum_k, mut mass_k) = (Vec::new(), Vec::new());
+        if frame.is_some() {
+            view = vec![f64::NAN; m.load.tray.cells()];
+            (lo_k, hi_k) = (vec![f64::INFINITY; k], vec![f64::NEG_INFINITY; k]);
+            (sum_k, mass_k) = (vec![0.0; k], vec![0.0; k]);
+        }
+        for &i in &m.filled {
+            let nodes = m.nodes(i);
+            let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+            let (mut sum, mut mass) = (0.0, 0.0);
+            for node in nodes.clone() {
+                let t = m.temp[node];
+                lo = lo.min(t);
+                hi = hi.max(t);
+                sum += t * m.mass[node];
+                mass += m.mass[node];
+            }
+            if step.is_some() {
+                self.peak[i] = self.peak[i].max(hi);
+                self.coldest_trace[i].push(lo);
+            }
+            if frame.is_some() {
+                // A column that boiled away entirely holds at the boiling point.
+                let mean = if mass > 0.0 {
+                    sum / mass
+                } else {
+                    BOILING_POINT
+                };
+                view[i] = match self.view {
+                    View::Coldest => lo,
+                    View::Mean => mean,
+                    View::Surface => m.temp[nodes.start],
+                };
+                let it = m.load.cells[i].expect("filled").item;
+                lo_k[it] = lo_k[it].min(lo);
+                hi_k[it] = hi_k[it].max(hi);
+                sum_k[it] += sum;
+                mass_k[it] += mass;
+            }
+        }
+        let Some(t) = frame else { return };
+        self.times.push(t);
+        self.frames.push(view);
+        // An item that boiled away entirely has no mass left: its mean is the boiling point.
+        for (it, curve) in self.items.iter_mut().enumerate() {
+            if mass_k[it] == 0.0 && lo_k[it].is_finite() {
+                sum_k[it] = BOILING_POINT;
+                mass_k[it] = 1.0;
+            }
+            let empty = mass_k[it] == 0.0;
+            curve.min.push(if empty { f64::NAN } else { lo_k[it] });
+            curve.max.push(if empty { f64::NAN } else { hi_k[it] });
+            curve.mean.push(if empty {
+                f64::NAN
+            } else {
+                sum_k[it] / mass_k[it]
+            });
         }
     }
 }
