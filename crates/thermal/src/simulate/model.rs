@@ -52,6 +52,9 @@ pub(super) struct Model<'a> {
     pairs: Vec<Pair>,
     /// The two nodes of each pair, compact: what the flux loop reads every sub-step.
     ends: Vec<[u32; 2]>,
+    /// Steps since the conductances were last computed, and whether a node dried out since.
+    cond_age: usize,
+    dried_since_cond: bool,
     /// Per node: side area (m²) facing a held edge, and that edge's temperature.
     edge_area: Vec<f64>,
     edge_temp: Vec<f64>,
@@ -110,6 +113,8 @@ impl<'a> Model<'a> {
             hint: vec![],
             pairs: vec![],
             ends: vec![],
+            cond_age: 0,
+            dried_since_cond: true,
             edge_area: vec![],
             edge_temp: vec![],
             top: vec![],
@@ -298,6 +303,7 @@ impl<'a> Model<'a> {
         self.half_inv_k[i] = f64::INFINITY;
         self.mu[i] = 0.0;
         self.live.retain(|&j| j != i);
+        self.dried_since_cond = true;
     }
 
     /// Conductance of every pair with the current conductivities, and each node's sum of them.
@@ -370,7 +376,15 @@ impl<'a> Model<'a> {
             }
         }
         let heating = !power.is_empty();
-        self.conductances();
+        // Conductivities change slowly (a few per cent per 10 K, and a thaw only lowers them):
+        // the conductances follow them every other step, and at once when a node dries out.
+        if self.cond_age >= 1 || self.dried_since_cond {
+            self.conductances();
+            self.cond_age = 0;
+            self.dried_since_cond = false;
+        } else {
+            self.cond_age += 1;
+        }
         // (A limit below 1 ms would mean a degenerate material; the floor keeps the loop finite.)
         let parts = if self.stable_for(dt) {
             1
