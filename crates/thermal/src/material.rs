@@ -93,6 +93,14 @@ pub struct Dielectric {
     pub transmission: f64,
 }
 
+/// Where an enthalpy falls in a material's table: the row below it and the fraction of the way to
+/// the next ([`Material::locate`]).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Spot {
+    row: usize,
+    f: f64,
+}
+
 /// A node's state read from its enthalpy ([`Material::state`]).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct State {
@@ -319,36 +327,34 @@ impl Material {
     /// The state at enthalpy `hv`; `hint` is the row index from the previous call for the same
     /// node (updated).
     pub fn state(&self, hv: f64, hint: &mut usize) -> State {
-        let of = |t: f64, r: &Row| State {
+        let (t, spot) = self.locate(hv, hint);
+        State {
             t,
-            k: r.k,
-            dielectric: Dielectric {
-                attenuation: r.mu,
-                transmission: r.transmit,
-            },
-        };
+            k: self.conductivity_at(spot),
+            dielectric: self.dielectric_at(spot),
+        }
+    }
+
+    /// The temperature at enthalpy `hv`, and where `hv` falls in the table, from which the other
+    /// properties are read when they are needed ([`Material::conductivity_at`],
+    /// [`Material::dielectric_at`]). `hint` as for [`Material::state`].
+    pub fn locate(&self, hv: f64, hint: &mut usize) -> (f64, Spot) {
         match &self.curve {
-            Curve::Linear { cp, k, mu } => State {
-                t: T_MIN + hv / cp,
-                k: *k,
-                dielectric: Dielectric {
-                    attenuation: *mu,
-                    transmission: 1.0,
-                },
-            },
+            Curve::Linear { cp, .. } => (T_MIN + hv / cp, Spot::default()),
             Curve::Table {
                 rows,
                 cp_hot,
                 cp_cold,
             } => {
                 let (first, last) = (rows[0], rows[rows.len() - 1]);
+                let top = rows.len() - 2;
                 if hv >= last.h {
-                    return of(last.t + (hv - last.h) / cp_hot, &last);
+                    let spot = Spot { row: top, f: 1.0 };
+                    return (last.t + (hv - last.h) / cp_hot, spot);
                 }
                 if hv <= first.h {
-                    return of(first.t + (hv - first.h) / cp_cold, &first);
+                    return (first.t + (hv - first.h) / cp_cold, Spot::default());
                 }
-                let top = rows.len() - 2;
                 // Temperatures move some rows per step: gallop from the hint (1, 2, 4 … rows) to
                 // bracket the row, then bisect the bracket.
                 let start = (*hint).min(top);
@@ -381,13 +387,34 @@ impl Material {
                 *hint = i;
                 let (a, b) = (rows[i], rows[i + 1]);
                 let f = ((hv - a.h) * a.inv_span).clamp(0.0, 1.0);
-                State {
-                    t: a.t + f * (b.t - a.t),
-                    k: a.k + f * (b.k - a.k),
-                    dielectric: Dielectric {
-                        attenuation: a.mu + f * (b.mu - a.mu),
-                        transmission: a.transmit + f * (b.transmit - a.transmit),
-                    },
+                (a.t + f * (b.t - a.t), Spot { row: i, f })
+            }
+        }
+    }
+
+    /// Conductivity, W/(m·K), where [`Material::locate`] found the state.
+    pub fn conductivity_at(&self, spot: Spot) -> f64 {
+        match &self.curve {
+            Curve::Linear { k, .. } => *k,
+            Curve::Table { rows, .. } => {
+                let (a, b) = (rows[spot.row], rows[spot.row + 1]);
+                a.k + spot.f * (b.k - a.k)
+            }
+        }
+    }
+
+    /// Dielectric behaviour where [`Material::locate`] found the state.
+    pub fn dielectric_at(&self, spot: Spot) -> Dielectric {
+        match &self.curve {
+            Curve::Linear { mu, .. } => Dielectric {
+                attenuation: *mu,
+                transmission: 1.0,
+            },
+            Curve::Table { rows, .. } => {
+                let (a, b) = (rows[spot.row], rows[spot.row + 1]);
+                Dielectric {
+                    attenuation: a.mu + spot.f * (b.mu - a.mu),
+                    transmission: a.transmit + spot.f * (b.transmit - a.transmit),
                 }
             }
         }

@@ -5,7 +5,7 @@ use super::column::{deposit, layer_count, layer_span, overlap};
 use super::evaporation;
 use super::{Edge, Load, Maps, Settings};
 use crate::composition::{BOILING_POINT, LATENT_VAPORISATION};
-use crate::material::{Material, REFERENCE_C};
+use crate::material::{Material, REFERENCE_C, Spot};
 
 /// Two nodes exchanging heat through `area` (m²) across `len_a` of node a and `len_b` of node b
 /// (each contributes half its length over its conductivity), plus `contact` (m²K/W) between
@@ -49,6 +49,8 @@ pub(super) struct Model<'a> {
     /// Per node, watts absorbed in the current sub-step.
     power: Vec<f64>,
     hint: Vec<usize>,
+    /// Per node: where its state sits in its material's table.
+    spot: Vec<Spot>,
     pairs: Vec<Pair>,
     /// The two nodes of each pair, compact: what the flux loop reads every sub-step.
     ends: Vec<[u32; 2]>,
@@ -112,6 +114,7 @@ impl<'a> Model<'a> {
             power: vec![],
             hint: vec![],
             pairs: vec![],
+            spot: vec![],
             ends: vec![],
             cond_age: 0,
             dried_since_cond: true,
@@ -175,6 +178,7 @@ impl<'a> Model<'a> {
         m.k = vec![0.0; nodes];
         m.mu = vec![0.0; nodes];
         m.transmit = vec![0.0; nodes];
+        m.spot = vec![Spot::default(); nodes];
         m.power = vec![0.0; nodes];
         m.hint = vec![0; nodes];
         m.edge_area = vec![0.0; nodes];
@@ -277,21 +281,34 @@ impl<'a> Model<'a> {
         }
     }
 
-    /// Temperature, conductivity and dielectric behaviour of node `i` from its energy, mass and
-    /// moisture.
+    /// Temperature of node `i` from its energy and mass, and where its state sits in its
+    /// material's table: the conductivity and the dielectric behaviour are read from there only
+    /// when they are needed ([`Self::conductances`], [`Self::dielectric`]).
     fn set_state(&mut self, i: usize) {
         let mat = self.material(i);
-        let s = mat.state(self.energy[i] / self.mass[i], &mut self.hint[i]);
-        self.temp[i] = s.t;
-        self.k[i] = s.k;
-        let water0 = mat.water * self.mass0[i];
-        // Most nodes never boil: their attenuation is the state's.
-        self.mu[i] = if self.water_left[i] < water0 {
-            mat.attenuation_with_moisture(s.dielectric.attenuation, self.water_left[i] / water0)
-        } else {
-            s.dielectric.attenuation
-        };
-        self.transmit[i] = s.dielectric.transmission;
+        let (t, spot) = mat.locate(self.energy[i] / self.mass[i], &mut self.hint[i]);
+        self.temp[i] = t;
+        self.spot[i] = spot;
+    }
+
+    /// Attenuation and face transmission of the nodes of `cell` from their states and moisture
+    /// (what the deposition reads while the power is on).
+    fn dielectric(&mut self, cell: usize) {
+        for i in self.nodes(cell) {
+            if self.boiled_dry[i] {
+                continue;
+            }
+            let mat = self.material(i);
+            let d = mat.dielectric_at(self.spot[i]);
+            let water0 = mat.water * self.mass0[i];
+            // Most nodes never boil: their attenuation is the state's.
+            self.mu[i] = if self.water_left[i] < water0 {
+                mat.attenuation_with_moisture(d.attenuation, self.water_left[i] / water0)
+            } else {
+                d.attenuation
+            };
+            self.transmit[i] = d.transmission;
+        }
     }
 
     /// Takes node `i` out of the physics once nothing is left of it: it holds at the boiling point,
@@ -310,7 +327,9 @@ impl<'a> Model<'a> {
     fn conductances(&mut self) {
         let dx = self.load.tray.cell_size;
         let top = self.settings.surface_h * dx * dx;
-        for &i in &self.live {
+        for idx in 0..self.live.len() {
+            let i = self.live[idx];
+            self.k[i] = self.material(i).conductivity_at(self.spot[i]);
             self.gsum[i] = top * self.top[i] + self.k[i] * self.edge_area[i] / dx;
             // 1/(2k) once per node, not once per pair side; infinite for a boiled-dry node
             // (k = 0), which cuts its pairs off.
@@ -418,7 +437,9 @@ impl<'a> Model<'a> {
         }
         if heating {
             let b = self.settings.bottom_entry;
-            for &cell in &self.filled {
+            for idx in 0..self.filled.len() {
+                let cell = self.filled[idx];
+                self.dielectric(cell);
                 let nodes = self.first[cell]..self.first[cell] + self.layers[cell];
                 let incident = self.rate[cell] * self.incident[cell];
                 // Each face lets in what its outermost remaining layer transmits.
