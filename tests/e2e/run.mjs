@@ -295,6 +295,21 @@ await test('°C/°F toggle converts displayed values by F = C·9/5 + 32', async 
   await page.screenshot({ path: join(ART, 'workbench-fahrenheit.png'), fullPage: true });
 });
 
+await test('pointing lands on the cell under the pointer at laptop and narrow window sizes', async ({ page }) => {
+  for (const [w, h] of [[1280, 800], [1100, 800]]) {
+    await page.setViewportSize({ width: w, height: h });
+    await open(page);
+    const before = await plan(page);
+    await page.locator('.item .swatch').nth(0).click();
+    await drag(page, [0, 26], [0, 26]);
+    const after = await plan(page);
+    // The food grid is one string per row.
+    const changed = [];
+    after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+    assert(changed.length === 1 && changed[0][0] === 0 && changed[0][1] === 26, `${w}×${h}: painted ${JSON.stringify(changed)}`);
+  }
+});
+
 await test('the simulated map shows the point of each cell the user picks, and says which', async ({ page }) => {
   await open(page);
   const caption = () => page.locator('#map-simulated').locator('xpath=..').locator('figcaption').textContent();

@@ -261,14 +261,19 @@ pub fn App() -> impl IntoView {
         }
     };
 
+    // The cell under the pointer, wherever CSS, page zoom or the device's pixel ratio put the
+    // canvas: the pointer's place inside the canvas's content box, scaled to its drawing.
     let cell_at = move |ev: &web_sys::PointerEvent| -> Option<usize> {
         let p = plan.get_untracked();
-        let px = draw::cell_px(&p, 560.0);
-        let (c, r) = (
-            (ev.offset_x() as f64 / px) as usize,
-            (ev.offset_y() as f64 / px) as usize,
+        let canvas = tray_ref.get_untracked()?;
+        let rect = canvas.get_bounding_client_rect();
+        let shown = (canvas.client_width() as f64, canvas.client_height() as f64);
+        let drawn = (canvas.width() as f64, canvas.height() as f64);
+        let at = (
+            ev.client_x() as f64 - rect.left() - canvas.client_left() as f64,
+            ev.client_y() as f64 - rect.top() - canvas.client_top() as f64,
         );
-        (c < p.tray.width && r < p.tray.height).then(|| r * p.tray.width + c)
+        crate::paint::cell_at_point(&p, draw::cell_px(&p, 560.0), at, shown, drawn)
     };
     let on_down = move |ev: web_sys::PointerEvent| {
         let Some(i) = cell_at(&ev) else { return };

@@ -56,6 +56,28 @@ pub fn paint(plan: &mut Plan, tool: Tool, a: usize, b: usize, brush: usize) -> b
     changed
 }
 
+/// The cell at `at` (CSS pixels inside the tray canvas's content box), for a canvas drawn at
+/// `drawn` pixels (cells `px` drawing pixels wide) and shown at `shown` CSS pixels; None outside
+/// the tray or for a canvas not shown.
+pub fn cell_at_point(
+    plan: &Plan,
+    px: f64,
+    at: (f64, f64),
+    shown: (f64, f64),
+    drawn: (f64, f64),
+) -> Option<usize> {
+    if shown.0 <= 0.0 || shown.1 <= 0.0 || px <= 0.0 {
+        return None;
+    }
+    let x = at.0 * drawn.0 / shown.0 / px;
+    let y = at.1 * drawn.1 / shown.1 / px;
+    if !(x >= 0.0 && y >= 0.0) {
+        return None;
+    }
+    let (c, r) = (x as usize, y as usize);
+    (c < plan.tray.width && r < plan.tray.height).then(|| r * plan.tray.width + c)
+}
+
 #[cfg(all(test, target_arch = "wasm32"))]
 mod tests {
     //! Run in headless Chromium by `cargo xtask test` (wasm-bindgen-test).
@@ -143,5 +165,29 @@ mod tests {
             .unwrap()
             .replace_state_with_url(&wasm_bindgen::JsValue::NULL, "", Some("#"))
             .unwrap();
+    }
+
+    /// A canvas drawn at 560 px but shown at 280 CSS px (a narrow window): the pointer halfway
+    /// across lands in the middle column, not a quarter of the way; outside the tray is nothing.
+    #[wasm_bindgen_test]
+    fn pointing_scales_from_the_shown_size_to_the_drawing() {
+        let plan = Plan::blank(28, 18, 10.0);
+        let px = 20.0;
+        let drawn = (560.0, 360.0);
+        let shown = (280.0, 180.0);
+        assert_eq!(
+            cell_at_point(&plan, px, (140.5, 0.5), shown, drawn),
+            Some(14)
+        );
+        assert_eq!(
+            cell_at_point(&plan, px, (279.0, 179.0), shown, drawn),
+            Some(17 * 28 + 27)
+        );
+        assert_eq!(cell_at_point(&plan, px, (-1.0, 5.0), shown, drawn), None);
+        assert_eq!(cell_at_point(&plan, px, (281.0, 5.0), shown, drawn), None);
+        assert_eq!(
+            cell_at_point(&plan, px, (5.0, 5.0), (0.0, 0.0), drawn),
+            None
+        );
     }
 }
