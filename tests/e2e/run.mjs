@@ -311,6 +311,21 @@ await test('pointing lands on the cell under the pointer at laptop and narrow wi
   }
 });
 
+await test('the keyboard paints: arrows move a cell cursor on the focused tray, Space paints there', async ({ page }) => {
+  await open(page);
+  const before = await plan(page);
+  await page.locator('.item .swatch').nth(0).click();
+  await page.locator('#tray').focus();
+  for (let k = 0; k < 26; k++) await page.keyboard.press('ArrowRight'); // the first press shows the cursor at row 0, col 0
+  await page.keyboard.press('Space');
+  const after = await plan(page);
+  const changed = [];
+  after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+  assert(changed.length === 1 && changed[0][0] === 0 && changed[0][1] === 25, `painted ${JSON.stringify(changed)}`);
+  await page.keyboard.press('Control+z');
+  assert(same((await plan(page)).food, before.food), 'undo restores the food grid');
+});
+
 await test('the simulated map shows the point of each cell the user picks, and says which', async ({ page }) => {
   await open(page);
   const caption = () => page.locator('#map-simulated').locator('xpath=..').locator('figcaption').textContent();

@@ -119,6 +119,8 @@ pub fn App() -> impl IntoView {
     let runs_in_f = RwSignal::new(false);
     let eval: RwSignal<Option<Result<Evaluation, String>>> = RwSignal::new(None);
     let hover = RwSignal::new(None::<usize>);
+    // The keyboard's cell cursor on the tray (arrows move it, Space or Enter paints there).
+    let cursor = RwSignal::new(None::<usize>);
     let link_len = RwSignal::new(0usize);
     let copied = RwSignal::new(false);
     let blank_w = RwSignal::new(24usize);
@@ -184,6 +186,9 @@ pub fn App() -> impl IntoView {
         let px = draw::cell_px(&p, 560.0);
         if let Some(c) = tray_ref.get() {
             draw::editor(&c, &p, px);
+            if let Some(i) = cursor.get() {
+                draw::cursor(&c, &p, px, i);
+            }
         }
         quick.with(|q| {
             if let Some(q) = q.as_ref().filter(|q| q.linear.len() == p.tray.cells()) {
@@ -323,6 +328,40 @@ pub fn App() -> impl IntoView {
         stroke.set_value(None);
     };
 
+    // Painting from the keyboard, while the tray has focus.
+    let on_tray_key = move |ev: web_sys::KeyboardEvent| {
+        let (w, h) = plan.with_untracked(|p| (p.tray.width, p.tray.height));
+        let at = cursor.get_untracked().filter(|&i| i < w * h);
+        let (r, c) = at.map_or((0, 0), |i| (i / w, i % w));
+        let moved = match ev.key().as_str() {
+            "ArrowLeft" => Some((r, c.saturating_sub(1))),
+            "ArrowRight" => Some((r, (c + 1).min(w - 1))),
+            "ArrowUp" => Some((r.saturating_sub(1), c)),
+            "ArrowDown" => Some(((r + 1).min(h - 1), c)),
+            _ => None,
+        };
+        if let Some((r, c)) = moved {
+            ev.prevent_default();
+            let i = if at.is_some() { r * w + c } else { 0 };
+            cursor.set(Some(i));
+            hover.set(Some(i));
+            return;
+        }
+        if matches!(ev.key().as_str(), " " | "Enter") {
+            ev.prevent_default();
+            let i = at.unwrap_or(0);
+            cursor.set(Some(i));
+            mark("tc-input");
+            let (t, b) = (tool.get_untracked(), brush.get_untracked());
+            let mut p = plan.get_untracked();
+            if paint(&mut p, t, i, i, b) {
+                undo.update_value(|u| u.push(plan.get_untracked()));
+                redo.update_value(|r| r.clear());
+                plan.set(p);
+            }
+        }
+    };
+
     // Keyboard shortcuts.
     let keys = window_event_listener(leptos::ev::keydown, move |ev: web_sys::KeyboardEvent| {
         let target_is_input = ev
@@ -337,9 +376,9 @@ pub fn App() -> impl IntoView {
             "z" if ctrl && ev.shift_key() => do_redo(),
             "z" | "Z" if ctrl => do_undo(),
             "y" if ctrl => do_redo(),
-            "[" => brush.update(|b| *b = (*b).saturating_sub(1).max(1)),
-            "]" => brush.update(|b| *b = (*b + 1).min(9)),
-            "e" => tool.set(Tool::EraseFood),
+            "," => brush.update(|b| *b = (*b).saturating_sub(1).max(1)),
+            "." => brush.update(|b| *b = (*b + 1).min(9)),
+            "Backspace" => tool.set(Tool::EraseFood),
             "r" => rect.update(|r| *r = !*r),
             k if k.len() == 1 && k.as_bytes()[0].is_ascii_digit() && k != "0" => {
                 let n = (k.as_bytes()[0] - b'1') as usize;
@@ -630,11 +669,11 @@ pub fn App() -> impl IntoView {
                 <button on:click=move |_| edit(&|p| if p.zones.len() < 26 { p.zones.push(Zone { name: format!("Target {}", p.zones.len() + 1), min_c: 70.0, max_c: 80.0, weight: 1.0, cap_c: None }); })>"Add target"</button>
                 <h2>"Brush"</h2>
                 <div class="row">
-                    <button class:active=move || tool.get() == Tool::EraseFood on:click=move |_| tool.set(Tool::EraseFood) title="key E">"Erase food"</button>
+                    <button class:active=move || tool.get() == Tool::EraseFood on:click=move |_| tool.set(Tool::EraseFood) title="key Backspace">"Erase food"</button>
                     <button class:active=move || tool.get() == Tool::EraseZone on:click=move |_| tool.set(Tool::EraseZone)>"Erase target"</button>
                     <button class:active=move || rect.get() on:click=move |_| rect.update(|r| *r = !*r) title="key R">"Rectangle"</button>
                 </div>
-                <label>"Size " {move || brush.get()}<input type="range" min="1" max="9" prop:value=move || brush.get().to_string() on:input=move |ev| if let Some(v) = num(&ev) { brush.set(v as usize); } /></label>
+                <label title="keys , and . make it smaller and larger">"Size " {move || brush.get()}<input type="range" min="1" max="9" prop:value=move || brush.get().to_string() on:input=move |ev| if let Some(v) = num(&ev) { brush.set(v as usize); } /></label>
                 <div class="row">
                     <button id="undo" on:click=move |_| do_undo() title="Ctrl+Z">"Undo"</button>
                     <button id="redo" on:click=move |_| do_redo() title="Ctrl+Y">"Redo"</button>
@@ -665,7 +704,7 @@ pub fn App() -> impl IntoView {
             </section>
             <section class="board">
                 <h2>"Tray " <small>{move || plan.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
-                <canvas id="tray" node_ref=tray_ref on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| hover.set(None)></canvas>
+                <canvas id="tray" node_ref=tray_ref tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush" on:keydown=on_tray_key on:blur=move |_| cursor.set(None) on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| hover.set(None)></canvas>
                 <p class="hover" id="hover">{hover_text}</p>
                 <div class="maps">
                     <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=lin_ref></canvas><button class="small" on:click=png(lin_ref, "linear.png")>"PNG"</button></figure>

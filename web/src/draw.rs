@@ -70,6 +70,20 @@ pub fn editor(canvas: &HtmlCanvasElement, plan: &Plan, px: f64) {
     }
 }
 
+/// The keyboard's cell cursor: a two-tone outline that shows on every food colour.
+pub fn cursor(canvas: &HtmlCanvasElement, plan: &Plan, px: f64, cell: usize) {
+    let Some(g) = ctx(canvas) else { return };
+    let w = plan.tray.width;
+    let (x, y) = ((cell % w) as f64 * px, (cell / w) as f64 * px);
+    g.set_line_width(3.0);
+    g.set_stroke_style_str("#fbfaf7");
+    g.stroke_rect(x + 1.5, y + 1.5, px - 3.0, px - 3.0);
+    g.set_line_width(1.5);
+    g.set_stroke_style_str("#1f2933");
+    g.stroke_rect(x + 1.5, y + 1.5, px - 3.0, px - 3.0);
+    g.set_line_width(1.0);
+}
+
 /// A heatmap of per-cell values with a legend strip below it: `diverging` centres the scale on 0.
 pub fn heatmap(
     canvas: &HtmlCanvasElement,
