@@ -614,17 +614,7 @@ fn interval_propagation_matches_sampling() {
     // of the rates from their stated normal errors, cell by cell, in the energy the bounds stand
     // for (h(bound) − h(nominal) on the food's enthalpy curve).
     let plan = demos::demo("side-by-side").unwrap();
-    let text = traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
-        .unwrap();
-    let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
-    let lib = calibrate::calibrate(&runs, &plan, &Settings::default())
-        .unwrap()
-        .library;
-    let mut p = plan.clone();
-    p.maps = MapSource::Library {
-        name: lib.name.clone(),
-        hash: None,
-    };
+    let (lib, mut p) = calibrated(&plan, &traycast_plan::runs::RunRecipe::default());
     // The maps' errors alone.
     p.variation = traycast_plan::model::Variation::NONE;
     let e = evaluate::evaluate(&p, Some(&lib), Options::default()).unwrap();
@@ -676,17 +666,7 @@ fn interval_propagation_matches_sampling() {
 #[test]
 fn the_safety_verdict_is_judged_on_the_lower_bound() {
     let plan = demos::demo("side-by-side").unwrap();
-    let text = traycast_plan::runs::heating_runs(&plan, &traycast_plan::runs::RunRecipe::default())
-        .unwrap();
-    let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
-    let mut lib = calibrate::calibrate(&runs, &plan, &Settings::default())
-        .unwrap()
-        .library;
-    let mut p = plan.clone();
-    p.maps = MapSource::Library {
-        name: lib.name.clone(),
-        hash: None,
-    };
+    let (mut lib, mut p) = calibrated(&plan, &traycast_plan::runs::RunRecipe::default());
     // The maps' errors alone, so that zero errors mean no spread at all.
     p.variation = traycast_plan::model::Variation::NONE;
     let with = |lib: &traycast_plan::library::MapLibrary| {
@@ -769,16 +749,7 @@ fn the_coldest_point_bound_covers_the_truth() {
             seed,
             ..Default::default()
         };
-        let text = traycast_plan::runs::heating_runs(&plan, &recipe).unwrap();
-        let runs = HeatingRuns::parse(&text, &plan, ReadOptions::default()).unwrap();
-        let lib = calibrate::calibrate(&runs, &plan, &Settings::default())
-            .unwrap()
-            .library;
-        let mut p = plan.clone();
-        p.maps = MapSource::Library {
-            name: lib.name.clone(),
-            hash: None,
-        };
+        let (lib, p) = calibrated(&plan, &recipe);
         let e = evaluate::evaluate(&p, Some(&lib), Options::default()).unwrap();
         let bounds = e.bounds.as_ref().unwrap();
         let truth =
@@ -805,3 +776,22 @@ fn the_coldest_point_bound_covers_the_truth() {
 
 /// Seeds of the coverage check.
 const SEEDS: u64 = 10;
+
+/// The library calibrated from `plan`'s invented bench runs made by `recipe`, and `plan` pointed at
+/// it.
+fn calibrated(
+    plan: &Plan,
+    recipe: &traycast_plan::runs::RunRecipe,
+) -> (traycast_plan::library::MapLibrary, Plan) {
+    let text = traycast_plan::runs::heating_runs(plan, recipe).unwrap();
+    let runs = HeatingRuns::parse(&text, plan, ReadOptions::default()).unwrap();
+    let lib = calibrate::calibrate(&runs, plan, &Settings::default())
+        .unwrap()
+        .library;
+    let mut p = plan.clone();
+    p.maps = MapSource::Library {
+        name: lib.name.clone(),
+        hash: None,
+    };
+    (lib, p)
+}
