@@ -4,7 +4,7 @@
 
 use super::report::{Evaluation, ItemSummary, logs, verdict_words};
 use crate::model::Plan;
-use traycast_thermal::safety::{Kill, minutes};
+use traycast_thermal::safety::{Kill, minutes, stand_words};
 
 /// What a food item's verdict rests on.
 #[derive(Clone, Debug, PartialEq)]
@@ -129,15 +129,7 @@ impl SafetyCard {
             "stand: {} {} (rules ask: {})",
             minutes(self.stood_s),
             if self.covered { "covered" } else { "uncovered" },
-            if need_s > 0.0 || need_cover {
-                format!(
-                    "{}{}",
-                    minutes(need_s),
-                    if need_cover { " covered" } else { "" }
-                )
-            } else {
-                "none".to_string()
-            }
+            stand_words(need_s, need_cover)
         );
         vec![
             format!("{}: {}", self.item, self.verdict),

@@ -191,6 +191,7 @@ impl Evaluator {
         let bounds = (maps.loaded_se.is_some() || plan.variation != Variation::NONE).then(|| {
             cell_bounds(
                 plan,
+                prep,
                 maps,
                 maps.loaded_se.as_deref(),
                 &dwell,

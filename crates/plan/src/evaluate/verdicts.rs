@@ -25,13 +25,14 @@ use traycast_thermal::simulate::TimeCourse;
 /// ± the variation off (or adds it). The bounds are read back through the food's enthalpy curve: a
 /// cell whose energy may fall short ends its lower bound on the thaw plateau rather than below it,
 /// and a cell that boiled first loses the energy that only evaporated water (water evaporated below
-/// boiling buffers nothing). Conduction between cells
-/// (which averages errors out) is neglected, which widens the bounds; upper bounds stop at
-/// 100 °C. Lower bounds belong to each cell's coldest point, upper bounds to its hottest point
-/// (what a cold-holding rule is judged on); the hottest point's energy leaves out what it
-/// evaporated, which only matters above the boiling point, where the bound is clamped anyway.
+/// boiling buffers nothing). Conduction between cells (which averages errors out) is neglected,
+/// which widens the bounds; upper bounds stop at 100 °C. Lower bounds belong to each cell's coldest
+/// point, upper bounds to its hottest point (what a cold-holding rule is judged on); the hottest
+/// point's energy leaves out what it evaporated, which only matters above the boiling point, where
+/// the bound is clamped anyway.
 pub fn cell_bounds(
     plan: &Plan,
+    prep: &Prepared,
     maps: &PlanMaps,
     se: Option<&[f64]>,
     dwell: &[f64],
@@ -39,15 +40,10 @@ pub fn cell_bounds(
     course: &TimeCourse,
 ) -> CellBounds {
     let n = maps.cells;
-    let mut count = vec![0usize; plan.items.len()];
-    for i in 0..n {
-        if let Some(k) = plan.item_at(i) {
-            count[k] += 1;
-        }
-    }
-    let z: Vec<f64> = count
+    let z: Vec<f64> = prep
+        .item_cells()
         .iter()
-        .map(|&c| stats::normal_quantile(1.0 - 0.025 / c.max(1) as f64))
+        .map(|cells| stats::normal_quantile(1.0 - 0.025 / cells.len().max(1) as f64))
         .collect();
     let (power, start_k) = (plan.variation.oven_power, plan.variation.start_k);
     let mut lower = vec![f64::NAN; n];

@@ -14,4 +14,4 @@ pub use rules::{
     FDA_MICROWAVE_REHEATING, FDA_PLANT_FOODS, FDA_RTE_REHEATING, FSIS_CHART, FsisRow, Requirement,
     SafetyCategory, fsis_celsius,
 };
-pub use verdict::{Handling, Kill, Verdict, minutes, verdict, verdict_within};
+pub use verdict::{Handling, Kill, Verdict, minutes, stand_words, verdict, verdict_within};

@@ -112,9 +112,8 @@ pub fn verdict_within(
     }
     if stand > handling.stood_seconds {
         missing.push(format!(
-            "stand {}{} (plan: {})",
-            minutes(stand),
-            if cover { " covered" } else { "" },
+            "stand {} (plan: {})",
+            stand_words(stand, cover),
             minutes(handling.stood_seconds)
         ));
     }
@@ -141,6 +140,15 @@ pub fn verdict_within(
         kill,
         stand_required_s: stand,
         cover_required: cover,
+    }
+}
+
+/// A stand for a person: "2 min covered", "3 min", "none".
+pub fn stand_words(seconds: f64, covered: bool) -> String {
+    match (seconds > 0.0, covered) {
+        (false, false) => "none".into(),
+        (false, true) => "covered".into(),
+        (true, c) => format!("{}{}", minutes(seconds), if c { " covered" } else { "" }),
     }
 }
 
