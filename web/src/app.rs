@@ -454,6 +454,8 @@ pub fn App() -> impl IntoView {
                     let on = if s.spread.is_some() { " at the lower bound" } else { "" };
                     let words = traycast_plan::evaluate::verdict_words(v, e.illustrative());
                     let judged = s.judged.map_or(String::new(), |j| format!("at its {} ({}); ", j.name(), j.place(p.tray.width)));
+                    // The reasons are on the item's safety card: the table keeps to the outcome.
+                    let words = if v.safe { words } else { "fails (see its safety card)".to_string() };
                     let verdict = if v.margin.is_finite() { format!("{words}{on} ({:+.1} {})", u.diff(v.margin), u.diff_symbol()) } else { words };
                     let range = |r: (f64, f64)| format!("{:.1}–{:.1} {}", u.temp(r.0), u.temp(r.1), u.symbol());
                     let basis = e.bounds_from.clone().unwrap_or_default();
