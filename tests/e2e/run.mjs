@@ -326,6 +326,28 @@ await test('the keyboard paints: arrows move a cell cursor on the focused tray, 
   assert(same((await plan(page)).food, before.food), 'undo restores the food grid');
 });
 
+await test('the rectangle tool outlines the rectangle while dragging, and paints it when let go', async ({ page }) => {
+  await open(page);
+  const before = await plan(page);
+  await page.locator('.item .swatch').nth(0).click();
+  await page.getByRole('button', { name: 'Rectangle' }).click();
+  const a = await cellPoint(page, 0, 12); // row 0 is empty in the demo
+  const b = await cellPoint(page, 0, 15);
+  const drawn = () => page.evaluate(() => document.querySelector('#tray').toDataURL());
+  await page.mouse.move(a.x, a.y);
+  await page.mouse.down();
+  const pressed = await drawn();
+  await page.mouse.move(b.x, b.y, { steps: 4 });
+  await page.waitForTimeout(50);
+  assert((await drawn()) !== pressed, 'the tray shows an outline while dragging');
+  assert(same((await plan(page)).food, before.food), 'nothing painted before the drag ends');
+  await page.mouse.up();
+  const after = await plan(page);
+  const changed = [];
+  after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+  assert(changed.length === 4 && changed.every(([r, c]) => r === 0 && c >= 12 && c <= 15), `painted ${JSON.stringify(changed)}`);
+});
+
 await test('the simulated map shows the point of each cell the user picks, and says which', async ({ page }) => {
   await open(page);
   const caption = () => page.locator('#map-simulated').locator('xpath=..').locator('figcaption').textContent();

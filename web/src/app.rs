@@ -121,6 +121,8 @@ pub fn App() -> impl IntoView {
     let hover = RwSignal::new(None::<usize>);
     // The keyboard's cell cursor on the tray (arrows move it, Space or Enter paints there).
     let cursor = RwSignal::new(None::<usize>);
+    // The rectangle being dragged (first and current cell), outlined until it is let go.
+    let rect_preview = RwSignal::new(None::<(usize, usize)>);
     let link_len = RwSignal::new(0usize);
     let copied = RwSignal::new(false);
     let blank_w = RwSignal::new(24usize);
@@ -188,6 +190,9 @@ pub fn App() -> impl IntoView {
             draw::editor(&c, &p, px);
             if let Some(i) = cursor.get() {
                 draw::cursor(&c, &p, px, i);
+            }
+            if let Some((a, b)) = rect_preview.get() {
+                draw::selection(&c, &p, px, a, b);
             }
         }
         quick.with(|q| {
@@ -302,10 +307,13 @@ pub fn App() -> impl IntoView {
     let on_move = move |ev: web_sys::PointerEvent| {
         let cell = cell_at(&ev);
         hover.set(cell);
-        let (Some(i), Some(_)) = (cell, stroke.get_value()) else {
+        let (Some(i), Some(a)) = (cell, stroke.get_value()) else {
             return;
         };
         if rect.get_untracked() {
+            if rect_preview.get_untracked() != Some((a, i)) {
+                rect_preview.set(Some((a, i)));
+            }
             return;
         }
         mark("tc-input");
@@ -326,6 +334,7 @@ pub fn App() -> impl IntoView {
             });
         }
         stroke.set_value(None);
+        rect_preview.set(None);
     };
 
     // Painting from the keyboard, while the tray has focus.

@@ -84,6 +84,26 @@ pub fn cursor(canvas: &HtmlCanvasElement, plan: &Plan, px: f64, cell: usize) {
     g.set_line_width(1.0);
 }
 
+/// The rectangle a drag would paint, from cell `a` to cell `b`: a dashed two-tone outline.
+pub fn selection(canvas: &HtmlCanvasElement, plan: &Plan, px: f64, a: usize, b: usize) {
+    let Some(g) = ctx(canvas) else { return };
+    let w = plan.tray.width;
+    let (c0, c1) = ((a % w).min(b % w), (a % w).max(b % w));
+    let (r0, r1) = ((a / w).min(b / w), (a / w).max(b / w));
+    let (x, y) = (c0 as f64 * px, r0 as f64 * px);
+    let (wd, ht) = ((c1 - c0 + 1) as f64 * px, (r1 - r0 + 1) as f64 * px);
+    g.set_line_width(3.0);
+    g.set_stroke_style_str("#fbfaf7");
+    g.stroke_rect(x + 1.5, y + 1.5, wd - 3.0, ht - 3.0);
+    let dash = js_sys::Array::of2(&5.0.into(), &4.0.into());
+    let _ = g.set_line_dash(&dash);
+    g.set_line_width(1.5);
+    g.set_stroke_style_str("#1f2933");
+    g.stroke_rect(x + 1.5, y + 1.5, wd - 3.0, ht - 3.0);
+    let _ = g.set_line_dash(&js_sys::Array::new());
+    g.set_line_width(1.0);
+}
+
 /// A heatmap of per-cell values with a legend strip below it: `diverging` centres the scale on 0.
 pub fn heatmap(
     canvas: &HtmlCanvasElement,
