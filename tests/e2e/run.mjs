@@ -331,6 +331,7 @@ await test('the rectangle tool outlines the rectangle while dragging, and paints
   const before = await plan(page);
   await page.locator('.item .swatch').nth(0).click();
   await page.getByRole('button', { name: 'Rectangle' }).click();
+  await page.locator('#tray').scrollIntoViewIfNeeded(); // the tool button sits lower on the page
   const a = await cellPoint(page, 0, 12); // row 0 is empty in the demo
   const b = await cellPoint(page, 0, 15);
   const drawn = () => page.evaluate(() => document.querySelector('#tray').toDataURL());
