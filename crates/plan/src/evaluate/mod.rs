@@ -31,7 +31,7 @@ pub use maps::{PlanMaps, Provenance, maps_for, materials};
 pub use problem::linear_prediction;
 pub use report::{
     Baseline, CellBounds, Evaluation, ItemSummary, JudgedPoint, Options, Quick, Refinement, Spread,
-    Z95, ZoneSummary, logs, verdict_words,
+    ZoneSummary, logs, verdict_words,
 };
 pub use verdicts::cell_bounds;
 

@@ -101,9 +101,6 @@ pub struct CellBounds {
     pub upper: Vec<f64>,
 }
 
-/// Normal quantile of a two-sided 95 % interval.
-pub const Z95: f64 = 1.959_963_984_540_054;
-
 /// The same tray heated without steering.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Baseline {

@@ -73,14 +73,15 @@ pub fn cell_bounds(
             0.0
         };
         let h = m.enthalpy(after);
-        let absorbed = h - m.enthalpy(start) + evaporated;
-        let colder_start = m.enthalpy(start) - m.enthalpy(start - start_k);
+        let h_start = m.enthalpy(start);
+        let absorbed = h - h_start + evaporated;
+        let colder_start = h_start - m.enthalpy(start - start_k);
         let de = off * absorbed.abs() + colder_start;
         lower[i] = m.state((h + evaporated - de).min(h), &mut 0).t.min(after);
         let hot = course.hottest_after_standing[i];
         let h_hot = m.enthalpy(hot);
-        let warmer_start = m.enthalpy(start + start_k) - m.enthalpy(start);
-        let de_hot = off * (h_hot - m.enthalpy(start)).abs() + warmer_start;
+        let warmer_start = m.enthalpy(start + start_k) - h_start;
+        let de_hot = off * (h_hot - h_start).abs() + warmer_start;
         upper[i] = m
             .state(h_hot + de_hot, &mut 0)
             .t
