@@ -47,6 +47,7 @@
 #![deny(missing_docs)]
 
 mod boxqp;
+mod constrained;
 mod error;
 mod factor;
 pub mod kkt;
@@ -55,6 +56,10 @@ mod solution;
 mod solver;
 pub mod synthetic;
 
+pub use constrained::{
+    Certificate, Constraint, Goal, Infeasible, MARGIN_TIME_PRICE, Multipliers, Outcome, Planned,
+    Refusal, Task, certify, solve_task,
+};
 pub use error::{Field, InputError};
 pub use problem::{
     MAGNITUDE_RANGE, MAX_CELLS, MAX_CONFIGS, Rates, Spec, band_distance, check_size, objective,

@@ -145,7 +145,7 @@ pub const MAX_CELLS: usize = 16_384;
 
 /// True when `v` is zero or its magnitude is inside [`MAGNITUDE_RANGE`] (infinities are the
 /// caller's business).
-fn in_magnitude(v: f64) -> bool {
+pub(crate) fn in_magnitude(v: f64) -> bool {
     let a = v.abs();
     // Non-short-circuit `|`/`&`: no branches in the validation sweep.
     (a == 0.0) | (a == f64::INFINITY) | ((a >= MAGNITUDE_RANGE.0) & (a <= MAGNITUDE_RANGE.1))

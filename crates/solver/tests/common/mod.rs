@@ -83,7 +83,7 @@ pub fn objective_scale(case: &Case) -> f64 {
     objective(&case.spec, &z, &vec![0.0; case.rates.configs()]).max(1.0)
 }
 
-fn dense_csc(
+pub fn dense_csc(
     rows: usize,
     cols: usize,
     upper_only: bool,
