@@ -6,6 +6,9 @@ use std::path::Path;
 
 /// Exit code for bad input or usage: a file, value or option the user can correct.
 pub const EXIT_INPUT: u8 = 2;
+/// Exit code for a well-formed task with no answer: infeasible hard constraints, or an unbounded
+/// goal. The message names the constraint that cannot be met.
+pub const EXIT_NO_ANSWER: u8 = 3;
 /// Exit code for anything else: a file that cannot be written, a solve that could not finish.
 pub const EXIT_FAILURE: u8 = 1;
 
@@ -14,7 +17,7 @@ pub const EXIT_FAILURE: u8 = 1;
 pub struct CliError {
     /// The line printed after "traycast: ".
     pub message: String,
-    /// [`EXIT_INPUT`] or [`EXIT_FAILURE`].
+    /// [`EXIT_INPUT`], [`EXIT_NO_ANSWER`] or [`EXIT_FAILURE`].
     pub code: u8,
 }
 
@@ -24,6 +27,14 @@ impl CliError {
         CliError {
             message: message.to_string(),
             code: EXIT_INPUT,
+        }
+    }
+
+    /// A task with no answer (see [`EXIT_NO_ANSWER`]).
+    pub fn no_answer(message: impl fmt::Display) -> Self {
+        CliError {
+            message: message.to_string(),
+            code: EXIT_NO_ANSWER,
         }
     }
 

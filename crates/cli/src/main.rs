@@ -27,7 +27,7 @@ use std::process::ExitCode;
     name = "traycast",
     version,
     about,
-    after_help = "Exit codes: 0 done; 2 bad input or usage (the message names the file and line, or the option); 1 anything else (a file that cannot be written).\n\nPredicted temperatures are estimates: check the coldest part of each food with a calibrated thermometer and follow your local food code."
+    after_help = "Exit codes: 0 done; 2 bad input or usage (the message names the file and line, or the option); 3 no answer: hard constraints that cannot all be met, or a goal with no limit (the message names the constraint); 1 anything else (a file that cannot be written).\n\nPredicted temperatures are estimates: check the coldest part of each food with a calibrated thermometer and follow your local food code."
 )]
 struct Cli {
     #[command(subcommand)]

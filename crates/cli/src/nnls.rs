@@ -5,7 +5,22 @@ use crate::format::{Format, exact, print_json};
 use crate::numfile::{Allow, read_matrix, read_vector};
 use std::path::{Path, PathBuf};
 use std::time::Instant;
-use traycast_solver::{DwellSolver, Field, InputError, Rates, Solution, Spec, Status};
+use traycast_solver::{
+    Constraint, DwellSolver, Field, Goal, InputError, Outcome, Planned, Rates, Refusal, Solution,
+    Spec, Status, Task, solve_task,
+};
+
+/// What `traycast nnls` optimises.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default, clap::ValueEnum)]
+pub enum Objective {
+    /// Least squares distance of A·x to the bands (--lo/--hi or --target are soft).
+    #[default]
+    Fit,
+    /// Least total time with --lo ≤ A·x ≤ --hi held as hard constraints.
+    Shortest,
+    /// Largest common margin inside the hard bands --lo/--hi, within --budget.
+    MaxMargin,
+}
 
 /// Arguments of `traycast nnls`.
 #[derive(clap::Args)]
@@ -39,6 +54,16 @@ pub struct Args {
         allow_negative_numbers = true
     )]
     time_penalty: f64,
+    /// What to optimise: `fit` (soft bands), `shortest` or `max-margin` (hard bands).
+    #[arg(long, value_enum, default_value_t)]
+    objective: Objective,
+    /// Hard minimum of A·x per cell (K), one per line (`-inf` for none), for `fit`: the bands are
+    /// fitted as well as possible while every minimum holds.
+    #[arg(long, value_name = "floor.csv")]
+    floor: Option<PathBuf>,
+    /// Hard maximum of A·x per cell (K), one per line (`inf` for none), for `fit`.
+    #[arg(long, value_name = "ceiling.csv")]
+    ceiling: Option<PathBuf>,
     /// Output: `text` (one dwell per line, seconds, plain decimals) or `json`.
     #[arg(long, value_enum, default_value_t)]
     format: Format,
@@ -93,6 +118,15 @@ pub fn run(args: &Args) -> Result<(), CliError> {
     }
     spec.budget = args.budget;
     spec.time_penalty = args.time_penalty;
+    let hard_rows = args.floor.is_some() || args.ceiling.is_some();
+    if args.objective != Objective::Fit || hard_rows {
+        if args.repeat.is_some() {
+            return Err(CliError::input(
+                "--repeat times the band fit only; drop it for --objective shortest or max-margin, or with --floor/--ceiling",
+            ));
+        }
+        return constrained(args, &rates, spec, &vec_for);
+    }
     spec.validate(m, n).map_err(|e| locate(args, e))?;
 
     let (solution, median) = match args.repeat {
@@ -118,6 +152,142 @@ pub fn run(args: &Args) -> Result<(), CliError> {
     Ok(())
 }
 
+/// The constrained objectives: the bands (or the floor and ceiling files) are hard.
+fn constrained(
+    args: &Args,
+    rates: &Rates,
+    spec: Spec,
+    vec_for: &dyn Fn(&Path, Allow, usize, &str) -> Result<Vec<f64>, CliError>,
+) -> Result<(), CliError> {
+    let (m, n) = (rates.cells(), rates.configs());
+    if args.objective != Objective::Fit && hard_rows_given(args) {
+        return Err(CliError::input(
+            "--floor and --ceiling go with --objective fit; for shortest and max-margin, --lo and --hi are the hard bounds",
+        ));
+    }
+    if args.objective == Objective::MaxMargin && args.time_penalty != 0.0 {
+        return Err(CliError::input(
+            "--time-penalty goes with --objective fit; max-margin breaks ties toward the shorter schedule itself",
+        ));
+    }
+    let mut task = match args.objective {
+        Objective::Shortest => Task::new(Goal::Shortest, m, n),
+        Objective::MaxMargin => Task::new(Goal::MaxMargin, m, n),
+        Objective::Fit => Task::fit(spec.clone()),
+    };
+    task.upper = spec.upper.clone();
+    task.budget = spec.budget;
+    if args.objective == Objective::Fit {
+        if let Some(f) = &args.floor {
+            task.floor = vec_for(f, Allow::Infinite, m, "one per cell of the rates")?;
+        }
+        if let Some(c) = &args.ceiling {
+            task.ceiling = vec_for(c, Allow::Infinite, m, "one per cell of the rates")?;
+        }
+    } else {
+        task.floor = spec.lo.clone();
+        task.ceiling = spec.hi.clone();
+    }
+    let planned = solve_task(rates, &task).map_err(|r| refusal(args, r))?;
+    print_planned(&planned, &task, args.format);
+    Ok(())
+}
+
+fn hard_rows_given(args: &Args) -> bool {
+    args.floor.is_some() || args.ceiling.is_some()
+}
+
+/// Where a constraint came from, in the user's files (lines are 1-based).
+fn place(args: &Args, c: Constraint) -> String {
+    let file = |p: Option<&PathBuf>| p.map(|p| p.display().to_string());
+    let hard_lo = if args.objective == Objective::Fit {
+        file(args.floor.as_ref())
+    } else {
+        file(args.lo.as_ref().or(args.target.as_ref()))
+    };
+    let hard_hi = if args.objective == Objective::Fit {
+        file(args.ceiling.as_ref())
+    } else {
+        file(args.hi.as_ref().or(args.target.as_ref()))
+    };
+    match (c, hard_lo, hard_hi) {
+        (Constraint::Floor(i), Some(f), _) => format!("the minimum on line {} of {f}", i + 1),
+        (Constraint::Ceiling(i), _, Some(f)) => format!("the maximum on line {} of {f}", i + 1),
+        (Constraint::Limit(j), _, _) => match &args.upper {
+            Some(u) => format!("the dwell limit on line {} of {}", j + 1, u.display()),
+            None => c.to_string(),
+        },
+        (Constraint::Budget, _, _) => "--budget".to_string(),
+        _ => c.to_string(),
+    }
+}
+
+/// A refusal as a message naming the files and lines involved.
+fn refusal(args: &Args, r: Refusal) -> CliError {
+    match r {
+        Refusal::Input(e) => locate(args, e),
+        Refusal::Infeasible(inf) => {
+            let with: Vec<String> = inf
+                .conflicts
+                .iter()
+                .take(4)
+                .map(|&c| place(args, c))
+                .collect();
+            let mut msg = format!(
+                "infeasible: {} cannot be met (short by {})",
+                place(args, inf.constraint),
+                exact(inf.shortfall)
+            );
+            if !with.is_empty() {
+                msg.push_str(&format!(" together with {}", with.join(", ")));
+            }
+            CliError::no_answer(msg)
+        }
+        other => CliError::no_answer(other),
+    }
+}
+
+fn print_planned(p: &Planned, task: &Task, format: Format) {
+    if p.outcome != Outcome::Optimal {
+        eprintln!(
+            "traycast: warning: the certificate residual is {} (above the tolerance): the dwells meet the constraints but are not proven optimal",
+            exact(p.certificate.residual())
+        );
+    }
+    match format {
+        Format::Text => {
+            for x in &p.dwell {
+                println!("{}", exact(*x));
+            }
+        }
+        Format::Json => {
+            let obj = serde_json::json!({
+                "goal": task.goal.as_str(),
+                "objective": p.objective,
+                "dwell_s": p.dwell,
+                "total_s": p.total_time(),
+                "margin_k": p.margin,
+                "status": p.outcome.as_str(),
+                "iterations": p.iterations,
+                "certificate": {
+                    "residual": p.certificate.residual(),
+                    "infeasibility": p.certificate.infeasibility,
+                    "stationarity": p.certificate.stationarity,
+                    "complementarity": p.certificate.complementarity,
+                    "duality_gap": p.certificate.gap,
+                },
+                "multipliers": {
+                    "floor": p.multipliers.floor,
+                    "ceiling": p.multipliers.ceiling,
+                    "dwell_limit": p.multipliers.limit,
+                    "budget": p.multipliers.budget,
+                },
+            });
+            print_json(&obj);
+        }
+    }
+}
+
 /// Solves once. The output needs no per-cell predictions, so the dwell-only path is enough.
 fn solve(rates: &Rates, spec: &Spec, args: &Args) -> Result<Solution, CliError> {
     DwellSolver::new(rates.clone())
@@ -141,6 +311,7 @@ fn print(sol: &Solution, format: Format, median: Option<f64>) {
         }
         Format::Json => {
             let mut obj = serde_json::json!({
+                "goal": "fit",
                 "dwell_s": sol.dwell,
                 "objective": sol.objective,
                 "status": sol.status.as_str(),

@@ -15,6 +15,36 @@ fn fmt(v: &serde_json::Value) -> String {
     }
 }
 
+/// Writes a fixture case's rate matrix as A.csv in `dir`.
+fn write_rates(dir: &std::path::Path, case: &serde_json::Value, m: usize, n: usize) -> String {
+    let a: Vec<f64> = case["rates_row_major"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_f64().unwrap())
+        .collect();
+    let rows: Vec<String> = (0..m)
+        .map(|i| {
+            a[i * n..(i + 1) * n]
+                .iter()
+                .map(|v| format!("{v:e}"))
+                .collect::<Vec<_>>()
+                .join(",")
+        })
+        .collect();
+    let p = dir.join("A.csv");
+    std::fs::write(&p, rows.join("\n") + "\n").unwrap();
+    p.to_str().unwrap().to_string()
+}
+
+/// Writes the fixture case's array `key` one value per line as `name` in `dir`.
+fn write_column(dir: &std::path::Path, name: &str, case: &serde_json::Value, key: &str) -> String {
+    let lines: Vec<String> = case[key].as_array().unwrap().iter().map(fmt).collect();
+    let p = dir.join(name);
+    std::fs::write(&p, lines.join("\n") + "\n").unwrap();
+    p.to_str().unwrap().to_string()
+}
+
 /// Every SciPy fixture case through the command line (see crates/solver/tests/scipy_reference.rs for
 /// the fixture's provenance: SciPy 1.17.1 nnls / lsq_linear bvls, recorded in the file).
 #[test]
@@ -27,39 +57,12 @@ fn agrees_with_scipy_fixtures() {
             case["m"].as_u64().unwrap() as usize,
             case["n"].as_u64().unwrap() as usize,
         );
-        let a: Vec<f64> = case["rates_row_major"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|v| v.as_f64().unwrap())
-            .collect();
-        let rows: Vec<String> = (0..m)
-            .map(|i| {
-                a[i * n..(i + 1) * n]
-                    .iter()
-                    .map(|v| format!("{v:e}"))
-                    .collect::<Vec<_>>()
-                    .join(",")
-            })
-            .collect();
-        let write = |name: &str, lines: Vec<String>| {
-            let p = dir.join(name);
-            std::fs::write(&p, lines.join("\n") + "\n").unwrap();
-            p.to_str().unwrap().to_string()
-        };
-        let col = |key: &str| {
-            case[key]
-                .as_array()
-                .unwrap()
-                .iter()
-                .map(fmt)
-                .collect::<Vec<_>>()
-        };
-        let ra = write("A.csv", rows);
-        let lo = write("lo.csv", col("lo"));
-        let hi = write("hi.csv", col("hi"));
-        let w = write("w.csv", col("weights"));
-        let u = write("u.csv", col("upper"));
+        let write = |name: &str, key: &str| write_column(&dir, name, case, key);
+        let ra = write_rates(&dir, case, m, n);
+        let lo = write("lo.csv", "lo");
+        let hi = write("hi.csv", "hi");
+        let w = write("w.csv", "weights");
+        let u = write("u.csv", "upper");
         let (code, out, err) = run(&[
             "--rates",
             &ra,
@@ -91,6 +94,67 @@ fn agrees_with_scipy_fixtures() {
         );
         assert_eq!(got["dwell_s"].as_array().unwrap().len(), n);
         assert!(got["kkt_residual"].as_f64().unwrap() < 1e-6);
+    }
+}
+
+/// Every SciPy `linprog` (HiGHS) fixture case through `--objective shortest|max-margin` (see
+/// crates/solver/tests/linprog_reference.rs for the provenance: SciPy 1.17.1, recorded in the file).
+/// Infeasible cases exit 3 naming a file and line or the budget.
+#[test]
+fn objectives_agree_with_scipy_linprog_highs() {
+    let text = include_str!("../../../tests/fixtures/solver/linprog_reference.json");
+    let fixture: serde_json::Value = serde_json::from_str(text).unwrap();
+    let dir = scratch("linprog");
+    for case in fixture["cases"].as_array().unwrap() {
+        let (m, n) = (
+            case["m"].as_u64().unwrap() as usize,
+            case["n"].as_u64().unwrap() as usize,
+        );
+        let write = |name: &str, key: &str| write_column(&dir, name, case, key);
+        let ra = write_rates(&dir, case, m, n);
+        let (lo, hi, u) = (
+            write("lo.csv", "floor"),
+            write("hi.csv", "ceiling"),
+            write("u.csv", "upper"),
+        );
+        let goal = case["goal"].as_str().unwrap().replace('_', "-");
+        let budget = case["budget"].as_f64().map(|b| format!("{b:e}"));
+        let mut args = vec![
+            "--rates",
+            &ra,
+            "--lo",
+            &lo,
+            "--hi",
+            &hi,
+            "--upper",
+            &u,
+            "--objective",
+            &goal,
+            "--format",
+            "json",
+        ];
+        if let Some(b) = &budget {
+            args.extend(["--budget", b]);
+        }
+        let (code, out, err) = run(&args);
+        if case["status"] == "infeasible" {
+            assert_eq!(code, 3, "{}: {err}", case["name"]);
+            assert!(err.contains("cannot be met"), "{err}");
+            assert!(err.contains(".csv") || err.contains("--budget"), "{err}");
+            continue;
+        }
+        assert_eq!(code, 0, "{}: {err}", case["name"]);
+        let got: serde_json::Value = serde_json::from_str(&out).unwrap();
+        let ours = got["objective"].as_f64().unwrap();
+        let theirs = case["value"].as_f64().unwrap();
+        assert!(
+            (ours - theirs).abs() <= 1e-6 * (1.0 + theirs.abs()),
+            "{}: ours {ours} highs {theirs}",
+            case["name"]
+        );
+        assert_eq!(got["goal"], case["goal"]);
+        assert_eq!(got["status"], "optimal");
+        assert!(got["certificate"]["residual"].as_f64().unwrap() < 1e-6);
     }
 }
 

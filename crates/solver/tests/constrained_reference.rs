@@ -41,7 +41,9 @@ fn clarabel(rates: &Rates, task: &Task) -> Oracle {
         let (ti, tj) = (i >= n, j >= n);
         2.0 * match (ti, tj) {
             (false, false) => {
-                (0..m).map(|c| s.weights[c] * a[(c, i)] * a[(c, j)]).sum::<f64>()
+                (0..m)
+                    .map(|c| s.weights[c] * a[(c, i)] * a[(c, j)])
+                    .sum::<f64>()
                     + if i == j { s.ridge } else { 0.0 }
             }
             (false, true) => -s.weights[j - n] * a[(j - n, i)],
@@ -102,7 +104,10 @@ fn clarabel(rates: &Rates, task: &Task) -> Oracle {
         }
     }
     let g = dense_csc(g_rows.len(), nv, false, |r, c| {
-        g_rows[r].iter().find(|(k, _)| *k == c).map_or(0.0, |(_, v)| *v)
+        g_rows[r]
+            .iter()
+            .find(|(k, _)| *k == c)
+            .map_or(0.0, |(_, v)| *v)
     });
     let cones = [NonnegativeConeT(h.len())];
     for tol in [1e-10, 1e-8] {
@@ -201,8 +206,13 @@ fn agree(rates: &Rates, task: &Task) -> Result<(), TestCaseError> {
             prop_assert!(recheck.residual() <= CERTIFY_TOL, "certificate {recheck:?}");
             prop_assert_eq!(p.outcome, Outcome::Optimal);
             let scale = 1.0 + v.abs() + p.objective.abs();
-            prop_assert!((p.objective - v).abs() <= 2e-6 * scale,
-                "{}: ours {} clarabel {}", task.goal.as_str(), p.objective, v);
+            prop_assert!(
+                (p.objective - v).abs() <= 2e-6 * scale,
+                "{}: ours {} clarabel {}",
+                task.goal.as_str(),
+                p.objective,
+                v
+            );
         }
         (Err(Refusal::Infeasible(inf)), Oracle::Infeasible) => {
             prop_assert!(inf.shortfall > 0.0, "{inf:?}");

@@ -127,7 +127,10 @@ pub fn certify(
         .zip(&gty_abs)
         .zip(&natural)
         .map(|(((g, gy), ga), s)| (g - gy).abs() / (g.abs() + ga.abs() + s + 1e-300))
-        .fold(0.0f64, |acc, v| if v.is_nan() { f64::NAN } else { acc.max(v) });
+        .fold(
+            0.0f64,
+            |acc, v| if v.is_nan() { f64::NAN } else { acc.max(v) },
+        );
     let primal: f64 = z.iter().zip(&grad).map(|(zi, gi)| zi * gi).sum();
     let gap = match task.goal {
         Goal::Fit(_) => 0.0,
@@ -151,7 +154,10 @@ fn absent_multipliers(task: &Task, y: &Multipliers) -> f64 {
         .zip(&task.upper)
         .any(|(&v, u)| v != 0.0 && !u.is_finite())
         || (y.budget != 0.0 && task.budget.is_none())
-        || y.floor.iter().zip(&task.floor).any(|(&v, f)| v != 0.0 && !f.is_finite())
+        || y.floor
+            .iter()
+            .zip(&task.floor)
+            .any(|(&v, f)| v != 0.0 && !f.is_finite())
         || y.ceiling
             .iter()
             .zip(&task.ceiling)

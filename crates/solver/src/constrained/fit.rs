@@ -45,9 +45,17 @@ pub(super) fn solve(rates: &Rates, task: &Task, spec: &Spec) -> Result<Fit, Refu
     let mut have_feasible = false;
     // ρ from the largest curvature any piece can have (every cell outside its band).
     let curvature = (0..n)
-        .map(|j| (0..m).map(|i| 2.0 * spec.weights[i] * a[(i, j)] * a[(i, j)]).sum::<f64>())
+        .map(|j| {
+            (0..m)
+                .map(|i| 2.0 * spec.weights[i] * a[(i, j)] * a[(i, j)])
+                .sum::<f64>()
+        })
         .fold(0.0f64, f64::max);
-    let rho = if curvature > 0.0 { PROXIMAL * curvature } else { 1.0 };
+    let rho = if curvature > 0.0 {
+        PROXIMAL * curvature
+    } else {
+        1.0
+    };
     for pass in 0..PASSES {
         let class: Vec<i8> = (0..m).map(|i| side(ax[i], spec, i)).collect();
         let (h, c) = piece(a, spec, &class, &x, rho);
@@ -61,11 +69,10 @@ pub(super) fn solve(rates: &Rates, task: &Task, spec: &Spec) -> Result<Fit, Refu
                 || band_distance(ax_new[i], spec.lo[i], spec.hi[i]).abs()
                     <= 1e-10 * (1.0 + spec.lo[i].abs().min(spec.hi[i].abs()))
         });
-        let moved = qp
-            .x
-            .iter()
-            .zip(&x)
-            .fold(0.0f64, |acc, (p, q)| acc.max((p - q).abs()));
+        let moved =
+            qp.x.iter()
+                .zip(&x)
+                .fold(0.0f64, |acc, (p, q)| acc.max((p - q).abs()));
         let size = qp.x.iter().fold(1.0f64, |acc, v| acc.max(v.abs()));
         if same && have_feasible && moved <= SETTLED * size {
             let mut multipliers = Multipliers::zeros(m, n);

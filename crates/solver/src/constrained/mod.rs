@@ -33,9 +33,9 @@ use std::fmt;
 pub use certify::{Certificate, certify};
 pub use rows::Constraint;
 
+use crate::error::Field;
 use crate::problem::{Rates, Spec, check_size};
 use crate::{CERTIFY_TOL, InputError};
-use crate::error::Field;
 
 /// Price of one second of dwell in the max-margin goal, in kelvin of margin: among schedules with
 /// the same margin, the shorter wins. Small enough that 1,000 s of dwell weigh 0.001 K.
@@ -294,8 +294,12 @@ impl fmt::Display for Refusal {
                     inf.constraint, inf.shortfall
                 )?;
                 if !inf.conflicts.is_empty() {
-                    let names: Vec<String> =
-                        inf.conflicts.iter().take(4).map(|c| c.to_string()).collect();
+                    let names: Vec<String> = inf
+                        .conflicts
+                        .iter()
+                        .take(4)
+                        .map(|c| c.to_string())
+                        .collect();
                     write!(f, " together with {}", names.join(", "))?;
                     if inf.conflicts.len() > 4 {
                         write!(f, " and {} more", inf.conflicts.len() - 4)?;
@@ -305,7 +309,10 @@ impl fmt::Display for Refusal {
             }
             Refusal::Unbounded(why) => write!(f, "unbounded: {why}"),
             Refusal::IterationLimit(n) => {
-                write!(f, "no answer within the iteration cap of {n}; the task is refused")
+                write!(
+                    f,
+                    "no answer within the iteration cap of {n}; the task is refused"
+                )
             }
         }
     }

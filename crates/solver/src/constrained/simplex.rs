@@ -41,7 +41,14 @@ pub(super) fn solve(rates: &Rates, task: &Task) -> Result<Lp, Refusal> {
     };
     let rows = Rows::new(a, task, margin_cap);
     let nv = rows.nv();
-    let mut cost = vec![if margin_cap.is_some() { MARGIN_TIME_PRICE } else { 1.0 }; nv];
+    let mut cost = vec![
+        if margin_cap.is_some() {
+            MARGIN_TIME_PRICE
+        } else {
+            1.0
+        };
+        nv
+    ];
     let mut basis: Vec<usize> = (0..n).collect(); // the rows xⱼ ≥ 0 come first in `rows`
     if margin_cap.is_some() {
         cost[n] = -1.0;
@@ -60,7 +67,9 @@ pub(super) fn solve(rates: &Rates, task: &Task) -> Result<Lp, Refusal> {
             return finish(&rows, task, state, pivot);
         };
         let gp = rows.dense(p);
-        let w = state.binv.tr_mul(&nalgebra::DVector::from_column_slice(&gp));
+        let w = state
+            .binv
+            .tr_mul(&nalgebra::DVector::from_column_slice(&gp));
         let wmax = w.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
         let tiny = 1e-10 * wmax.max(f64::MIN_POSITIVE);
         // Ratio test on the multipliers: the first to reach zero as y_p grows leaves.
@@ -138,7 +147,11 @@ fn margin_cap(a: &DMatrix<f64>, task: &Task) -> Result<f64, Refusal> {
         .chain(&task.ceiling)
         .filter(|v| v.is_finite())
         .fold(0.0f64, |acc, v| acc.max(v.abs()));
-    let any_edge = task.floor.iter().chain(&task.ceiling).any(|v| v.is_finite());
+    let any_edge = task
+        .floor
+        .iter()
+        .chain(&task.ceiling)
+        .any(|v| v.is_finite());
     if !any_edge {
         return Err(Refusal::Unbounded(
             "the max-margin goal needs at least one hard band edge (a minimum or a maximum)",
@@ -154,7 +167,11 @@ fn margin_cap(a: &DMatrix<f64>, task: &Task) -> Result<f64, Refusal> {
             (0..n)
                 .map(|j| {
                     let cap = task.upper[j].min(t);
-                    if a[(i, j)] == 0.0 { 0.0 } else { a[(i, j)] * cap }
+                    if a[(i, j)] == 0.0 {
+                        0.0
+                    } else {
+                        a[(i, j)] * cap
+                    }
                 })
                 .sum::<f64>()
         })
@@ -218,7 +235,9 @@ impl State {
             }
             ax
         };
-        let y = self.binv.tr_mul(&nalgebra::DVector::from_column_slice(cost));
+        let y = self
+            .binv
+            .tr_mul(&nalgebra::DVector::from_column_slice(cost));
         self.y = y.iter().copied().collect();
         Ok(())
     }
@@ -254,7 +273,13 @@ impl State {
 
 /// The Farkas ray: row p with weight 1 and the basis rows with weight −w. Gᵀr = 0 and gᵀr > 0
 /// prove that no z meets every row.
-fn farkas(rows: &Rows, state: &State, p: usize, w: &nalgebra::DVector<f64>, tiny: f64) -> Infeasible {
+fn farkas(
+    rows: &Rows,
+    state: &State,
+    p: usize,
+    w: &nalgebra::DVector<f64>,
+    tiny: f64,
+) -> Infeasible {
     let mut support: Vec<(Constraint, f64)> = state
         .basis
         .iter()
