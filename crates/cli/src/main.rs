@@ -65,7 +65,7 @@ enum Command {
         /// Plan JSON file.
         plan: PathBuf,
     },
-    /// Open a share link (or a full URL ending in #tc5.…) as plan JSON.
+    /// Open a share link (or a full URL ending in #tc6.…) as plan JSON.
     Open {
         /// The link.
         link: String,

@@ -152,12 +152,15 @@ pub fn run(args: &Args) -> Result<(), CliError> {
     Ok(())
 }
 
+/// Reads a one-per-line vector file of a given length (what it is for goes in the message).
+type VecReader = dyn Fn(&Path, Allow, usize, &str) -> Result<Vec<f64>, CliError>;
+
 /// The constrained objectives: the bands (or the floor and ceiling files) are hard.
 fn constrained(
     args: &Args,
     rates: &Rates,
     spec: Spec,
-    vec_for: &dyn Fn(&Path, Allow, usize, &str) -> Result<Vec<f64>, CliError>,
+    vec_for: &VecReader,
 ) -> Result<(), CliError> {
     let (m, n) = (rates.cells(), rates.configs());
     if args.objective != Objective::Fit && hard_rows_given(args) {

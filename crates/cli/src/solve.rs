@@ -7,6 +7,7 @@ use crate::plans::{load_library, load_plan, write};
 use crate::progress;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
+use traycast_plan::Objective;
 use traycast_plan::evaluate::{self, Evaluation, Options};
 use traycast_plan::model::Plan;
 use traycast_plan::wire;
@@ -22,9 +23,17 @@ pub struct SolveArgs {
     /// `text` (a report) or `json` (the evaluation summary).
     #[arg(long, value_enum, default_value_t)]
     pub format: Format,
-    /// Re-solve with the simulation's correction.
+    /// Run the simulation in the loop (solve → simulate → correct → re-solve) for any objective;
+    /// the safe minimum always runs it.
     #[arg(long)]
     pub refine: bool,
+    /// Plan for this objective instead of the plan's own: `band-fit`, `safe-minimum`, `shortest`
+    /// or `max-margin`.
+    #[arg(long, value_name = "NAME")]
+    pub objective: Option<String>,
+    /// Also hold the hard limits with the food placed one cell off in each direction.
+    #[arg(long)]
+    pub placement: bool,
 }
 
 /// Arguments of `traycast simulate`.
@@ -51,8 +60,18 @@ pub fn evaluate_file(
     plan_path: &Path,
     library: Option<&Path>,
     refine: bool,
+    planning: Option<(Option<&str>, bool)>,
 ) -> Result<(Plan, Evaluation), CliError> {
-    let plan = load_plan(plan_path)?;
+    let mut plan = load_plan(plan_path)?;
+    if let Some((objective, placement)) = planning {
+        if let Some(name) = objective {
+            plan.planning.objective =
+                Objective::parse(name, "--objective").map_err(|e| CliError::input(e.message))?;
+        }
+        plan.planning.placement |= placement;
+        plan.validate()
+            .map_err(|e| CliError::input(format!("--placement: {}", e.message)))?;
+    }
     let lib = library.map(load_library).transpose()?;
     let spinner = progress::spinner("evaluating the plan");
     let eval = evaluate::evaluate(&plan, lib.as_ref(), Options { refine })
@@ -63,7 +82,12 @@ pub fn evaluate_file(
 
 /// `traycast solve PLAN [--library FILE] [--format text|json] [--refine]`.
 pub fn solve(args: &SolveArgs) -> Result<(), CliError> {
-    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), args.refine)?;
+    let (p, e) = evaluate_file(
+        &args.plan,
+        args.library.as_deref(),
+        args.refine,
+        Some((args.objective.as_deref(), args.placement)),
+    )?;
     match args.format {
         Format::Json => print_json(&traycast_plan::summary::to_json(&p, &e)),
         Format::Text => print!("{}", report(&p, &e)),
@@ -83,6 +107,17 @@ fn exact2(v: f64) -> String {
 fn report(plan: &Plan, e: &Evaluation) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "{}", plan.name);
+    let _ = writeln!(
+        s,
+        "Planned for: {} ({}){}",
+        plan.planning.objective.as_str(),
+        plan.planning.objective.words(),
+        if plan.planning.placement {
+            "; hard limits also held with the food one cell off"
+        } else {
+            ""
+        }
+    );
     let _ = writeln!(
         s,
         "Total heating {:.1} s in {} steps, then {:.0} s standing (solver: {})",
@@ -164,13 +199,57 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
         100.0 * e.baseline.coverage_linear,
         e.baseline.rms_linear
     );
+    let _ = writeln!(
+        s,
+        "\nUniformity (CV of the rise σ/(T̄ − T₀), population σ over the cells; max–min spread; share in band):"
+    );
+    let _ = writeln!(
+        s,
+        "{:<28} {:>22} {:>22} {:>22}",
+        "food item", "steered, simulated", "steered, linear", "unsteered, linear"
+    );
+    for (it, u) in plan.items.iter().zip(&e.uniformity) {
+        let cell = |x: &traycast_plan::evaluate::Uniformity| {
+            format!(
+                "{} {:>5} K {:>4}",
+                num(x.cv, 2),
+                num(x.spread_k, 1),
+                if x.in_band.is_finite() {
+                    format!("{:.0}%", 100.0 * x.in_band)
+                } else {
+                    "—".into()
+                }
+            )
+        };
+        let _ = writeln!(
+            s,
+            "{:<28} {:>22} {:>22} {:>22}",
+            it.name,
+            cell(&u.steered_simulated),
+            cell(&u.steered_linear),
+            cell(&u.unsteered_linear)
+        );
+    }
     if let Some(r) = &e.refinement {
         let _ = writeln!(
             s,
-            "Refinement: RMS after standing {:.2} → {:.2} K ({})",
+            "Simulation loop: {} solves, {} (last change {} K, tolerance {} K); RMS after standing {:.2} → {:.2} K ({}); safety gap {} K",
+            r.passes,
+            if r.converged {
+                "settled"
+            } else {
+                "stopped at the cap"
+            },
+            num(r.change_k, 2),
+            r.tolerance_k,
             r.rms_before,
             r.rms_after,
-            if r.kept { "kept" } else { "no gain, not kept" }
+            if r.kept {
+                "a later pass kept"
+            } else {
+                "the first solve kept"
+            },
+            num(r.safety_gap_k, 1)
         );
     }
     for w in &e.warnings {
@@ -185,7 +264,7 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
 
 /// `traycast simulate PLAN --out CURVES.csv [--schedule OUT] [--format text|json]`.
 pub fn simulate(args: &SimulateArgs) -> Result<(), CliError> {
-    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), false)?;
+    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), false, None)?;
     let mut out = String::new();
     for c in e.cautions {
         let _ = writeln!(out, "# {c}");

@@ -9,7 +9,7 @@ fn demo_solve_link_open_round_trip() {
     let dir = scratch("plans");
     let (code, list, _) = traycast(&["demo"]);
     assert_eq!(code, 0);
-    assert_eq!(list.lines().count(), 3);
+    assert_eq!(list.lines().count(), 5);
     let plan = dir.join("plan.json");
     let p = plan.to_str().unwrap();
     assert_eq!(traycast(&["demo", "side-by-side", "--out", p]).0, 0);
@@ -186,7 +186,7 @@ fn every_result_command_speaks_json() {
         assert_eq!(code, 0, "{args:?}: {err}");
         serde_json::from_str(&out).unwrap_or_else(|e| panic!("{args:?}: {e}\n{out}"))
     };
-    assert_eq!(json(&["demo"])["demos"].as_array().unwrap().len(), 3);
+    assert_eq!(json(&["demo"])["demos"].as_array().unwrap().len(), 5);
     let solved = json(&["solve", &plan]);
     assert!(solved["dwell_s"].is_array() && solved["status"].is_string());
     let cal = json(&["calibrate", &runs, "--layout", &plan, "--out", &lib]);

@@ -1,10 +1,16 @@
 //! Demo scenarios of our own. All illustrative: invented trays, the synthetic field model, no real
 //! product or measurement behind them.
 
-use crate::model::{FoodItem, MapSource, Oven, Plan, Sequencing, Zone};
+use crate::model::{FoodItem, MapSource, Objective, Oven, Plan, Sequencing, Zone};
 
 /// Names of the demos, in the order `traycast demo` lists them.
-pub const DEMOS: [&str; 3] = ["lunch-tray", "frozen-portion", "side-by-side"];
+pub const DEMOS: [&str; 5] = [
+    "lunch-tray",
+    "hot-lunch",
+    "hot-lunch-safe",
+    "frozen-portion",
+    "side-by-side",
+];
 
 fn paint(
     plan: &mut Plan,
@@ -101,6 +107,8 @@ fn demo_plan(name: &str) -> Option<Plan> {
             p.heating.from_below = 0.5;
             p
         }
+        "hot-lunch" => hot_lunch(Objective::BandFit),
+        "hot-lunch-safe" => hot_lunch(Objective::SafeMinimum),
         "frozen-portion" => {
             // A frozen lasagne portion reheated to the reheating minimum.
             let mut p = base("Frozen lasagne portion (illustrative)", 20, 14, 10.0, 11);
@@ -134,6 +142,32 @@ fn demo_plan(name: &str) -> Option<Plan> {
         }
         _ => return None,
     })
+}
+
+/// Three hot compartments (the lunch tray without its chilled pudding), planned for `objective`:
+/// the band fit and the safe minimum of the same tray, to set side by side.
+fn hot_lunch(objective: Objective) -> Plan {
+    let name = match objective {
+        Objective::SafeMinimum => "Hot lunch, safe minimum (illustrative)",
+        _ => "Hot lunch, band fit (illustrative)",
+    };
+    let mut p = base(name, 28, 18, 10.0, 7);
+    p.items = vec![
+        item("Chicken breast", "chicken-breast", 20.0, 4.0),
+        item("Rice", "rice", 25.0, 4.0),
+        item("Broccoli", "broccoli", 20.0, 4.0),
+    ];
+    p.zones = vec![
+        zone("Chicken 85–98 °C", 85.0, 98.0, 3.0, None),
+        zone("Rice 82–96 °C", 82.0, 96.0, 1.0, None),
+        zone("Broccoli 65–75 °C", 65.0, 75.0, 1.0, None),
+    ];
+    paint(&mut p, 1, 1, 1..13, 1..9);
+    paint(&mut p, 2, 2, 15..27, 1..9);
+    paint(&mut p, 3, 3, 1..13, 10..17);
+    p.heating.from_below = 0.5;
+    p.planning.objective = objective;
+    p
 }
 
 /// The benchmark tray (illustrative): 48 × 32 cells of 7 mm, four foods in quadrants, two

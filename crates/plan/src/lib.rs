@@ -45,6 +45,7 @@ pub mod field;
 mod fingerprint;
 pub mod library;
 pub mod model;
+mod objective;
 mod regression;
 pub mod robustness;
 pub mod runs;
@@ -53,3 +54,4 @@ pub mod summary;
 pub mod wire;
 
 pub use error::{Place, PlanError};
+pub use objective::{Objective, Planning};

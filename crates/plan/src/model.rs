@@ -2,6 +2,7 @@
 //! oven settings, and where the heating maps come from.
 
 use crate::error::PlanError;
+pub use crate::objective::{Objective, Planning};
 use traycast_thermal::catalogue::{self, CatalogueFood};
 use traycast_thermal::simulate::Settings;
 
@@ -199,6 +200,8 @@ pub struct Plan {
     pub heating: Heating,
     /// How far the real oven and food may stray from the plan: what the safety bounds allow for.
     pub variation: Variation,
+    /// What the schedule is solved for, and the scenarios it must hold in.
+    pub planning: Planning,
     /// Map source.
     pub maps: MapSource,
 }
@@ -442,7 +445,7 @@ impl Plan {
             "variation.start_k",
             "start temperature variation, K",
         )?;
-        Ok(())
+        self.planning.validate()
     }
 
     /// A blank tray: no food, no zones, default oven (illustrative values).
@@ -462,6 +465,7 @@ impl Plan {
             oven: Oven::default(),
             heating: Heating::default(),
             variation: Variation::default(),
+            planning: Planning::default(),
             maps: MapSource::Synthetic { seed: 1 },
         }
     }

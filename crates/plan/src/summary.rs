@@ -14,6 +14,12 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
         "status": e.status.as_str(),
         "kkt_residual": e.kkt_residual,
         "variation": { "oven_power": plan.variation.oven_power, "start_k": plan.variation.start_k },
+        "planning": { "objective": plan.planning.objective.as_str(), "placement": plan.planning.placement },
+        "loop": e.refinement.as_ref().map(|r| serde_json::json!({
+            "passes": r.passes, "converged": r.converged, "change_k": finite(&r.change_k),
+            "tolerance_k": r.tolerance_k, "rms_before_k": finite(&r.rms_before), "rms_after_k": finite(&r.rms_after),
+            "kept_later_pass": r.kept, "safety_gap_k": finite(&r.safety_gap_k),
+        })),
         "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
             "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,
             "rms_linear_k": r.rms_linear, "rms_simulated_k": r.rms_simulated,
@@ -31,6 +37,16 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
             "log_reduction": r.verdict.kill.and_then(|k| finite(&k.achieved)),
             "log_reduction_required": r.verdict.kill.map(|k| k.target.logs),
             "safety_card": crate::evaluate::SafetyCard::of(plan, e, k).to_json(),
+            "uniformity": e.uniformity.get(k).map(|u| {
+                let one = |x: &crate::evaluate::Uniformity| serde_json::json!({
+                    "cv": finite(&x.cv), "spread_k": finite(&x.spread_k), "in_band": finite(&x.in_band),
+                });
+                serde_json::json!({
+                    "steered_linear": one(&u.steered_linear),
+                    "steered_simulated": one(&u.steered_simulated),
+                    "unsteered_linear": one(&u.unsteered_linear),
+                })
+            }),
             "verdict_on": if r.spread.is_some() { "95 % bounds" } else { "nominal temperatures" },
             "bounds_from": e.bounds_from,
             "spread": r.spread.as_ref().map(|s| serde_json::json!({

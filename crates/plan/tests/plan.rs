@@ -406,7 +406,7 @@ fn tray_capacity_and_covers_travel_and_older_plans_still_open() {
     assert!(json.contains("\"covered\": true"), "{json}");
     assert_eq!(wire::from_json(&json).unwrap(), plan);
     let link = wire::to_link(&plan);
-    assert!(link.starts_with("tc5."));
+    assert!(link.starts_with("tc6."));
     assert_eq!(wire::from_link(&link).unwrap(), plan);
     let bad = json.replace("\"tray_capacity\": 1400.0", "\"tray_capacity\": -1.0");
     assert_eq!(
@@ -437,6 +437,31 @@ fn tray_capacity_and_covers_travel_and_older_plans_still_open() {
         v4_file.variation,
         traycast_plan::model::Variation::default()
     );
+    // Version 5 (before the planning settings): the variation travels; the plan is a band fit.
+    let v5_file = wire::from_json(&fixture("side-by-side-v5.json")).unwrap();
+    let v5_link = wire::from_link(fixture("side-by-side-v5.link").trim()).unwrap();
+    assert_eq!(v5_file, v5_link);
+    assert_eq!(v5_file.variation.oven_power, 0.1);
+    assert_eq!(v5_file.variation.start_k, 3.0);
+    assert_eq!(v5_file.planning, traycast_plan::Planning::default());
+}
+
+/// What a plan is planned for travels in files and links; an unknown objective is refused at its
+/// field, and placement scenarios without hard limits are refused with the reason.
+#[test]
+fn the_planning_settings_travel_and_are_checked() {
+    let mut plan = demos::demo("hot-lunch-safe").unwrap();
+    plan.planning.placement = true;
+    assert_eq!(wire::from_json(&wire::to_json(&plan)).unwrap(), plan);
+    assert_eq!(wire::from_link(&wire::to_link(&plan)).unwrap(), plan);
+    assert!(wire::to_link(&plan).starts_with("tc6."));
+    let bad = wire::to_json(&plan).replace("\"safe-minimum\"", "\"fastest\"");
+    let e = wire::from_json(&bad).unwrap_err();
+    assert_eq!(e.place.to_string(), "planning.objective", "{e}");
+    assert!(e.message.contains("safe-minimum"), "{e}");
+    let fit = wire::to_json(&plan).replace("\"safe-minimum\"", "\"band-fit\"");
+    let e = wire::from_json(&fit).unwrap_err();
+    assert_eq!(e.place.to_string(), "planning.placement", "{e}");
 }
 
 /// The plan's variation (oven power, start temperature) travels in files and links, and a value

@@ -41,6 +41,14 @@ pub(super) fn of(plan: &Plan, prep: &Prepared, maps: &PlanMaps) -> Baseline {
         .fold(0.0f64, f64::max);
     let cap = plan.oven.budget_s.unwrap_or(3600.0);
     let seconds = need.min(cap);
+    // Every food cell's temperature under the baseline, for the uniformity figures.
+    let mut temps = start.clone();
+    for c in 0..maps.configs {
+        let map = &maps.loaded[c * n..(c + 1) * n];
+        for (t, r) in temps.iter_mut().zip(map) {
+            *t += r * seconds / maps.configs as f64;
+        }
+    }
     let errs: Vec<f64> = targeted
         .iter()
         .zip(&avg)
@@ -51,6 +59,7 @@ pub(super) fn of(plan: &Plan, prep: &Prepared, maps: &PlanMaps) -> Baseline {
         .collect();
     Baseline {
         seconds,
+        temps,
         rms_linear: rms(errs.iter().copied()),
         coverage_linear: if errs.is_empty() {
             f64::NAN

@@ -8,18 +8,22 @@
 //! - `verdicts`: per-cell bounds from the maps' errors and each item's verdict;
 //! - `diagnosis`: each zone's outcome and why it misses;
 //! - `baseline`: the unsteered comparison;
-//! - `refine`: re-solving with the simulation's correction;
+//! - `uniformity`: how evenly each item heats, steered and unsteered;
+//! - `goal`: the constrained objectives' rows, hard limits and placement scenarios;
+//! - `refine`: the simulation in the loop (solve → simulate → correct → re-solve);
 //! - `report`: the types all of this returns.
 
 mod baseline;
 mod card;
 mod course;
 mod diagnosis;
+mod goal;
 mod maps;
 mod prepared;
 mod problem;
 mod refine;
 mod report;
+mod uniformity;
 mod verdicts;
 
 pub use baseline::baseline;
@@ -27,12 +31,15 @@ pub use card::SafetyCard;
 pub(crate) use course::simulate_load;
 pub use course::time_course;
 pub use diagnosis::Diagnosis;
+pub use goal::Hard;
 pub use maps::{PlanMaps, Provenance, maps_for, materials};
 pub use problem::linear_prediction;
+pub use refine::{MAX_PASSES, TOLERANCE_K};
 pub use report::{
     Baseline, CellBounds, Evaluation, ItemSummary, JudgedPoint, Options, Quick, Refinement, Spread,
     ZoneSummary, logs, verdict_words,
 };
+pub use uniformity::{ItemUniformity, Uniformity, uniformity};
 pub use verdicts::cell_bounds;
 
 pub use prepared::Prepared;
@@ -114,7 +121,8 @@ impl Evaluator {
         plan.validate()?;
         let prep = Prepared::new(plan);
         self.maps(plan)?;
-        let sol = self.solve(plan, &prep, None)?;
+        let hard = first_hard(plan, &prep);
+        let sol = self.solve(plan, &prep, None, hard.as_ref())?;
         let maps = self.maps.as_ref().expect("set");
         let mut dwell = sol.dwell;
         quantise(&mut dwell, plan.oven.quantum_s, plan.oven.budget_s);
@@ -134,10 +142,14 @@ impl Evaluator {
         plan.validate()?;
         let prep = Prepared::new(plan);
         self.maps(plan)?;
-        let sol = self.solve(plan, &prep, None)?;
+        let hard = first_hard(plan, &prep);
+        let sol = self.solve(plan, &prep, None, hard.as_ref())?;
         let mut eval = self.finish(plan, &prep, &sol, None)?;
-        if options.refine {
-            self.refine(plan, &prep, &mut eval)?;
+        // Hard limits are only as good as the linear model they are written on: the constrained
+        // objectives always run the simulation loop (the safe minimum's floors are only right once
+        // it has shown the coldest points); the band fit runs it on request.
+        if options.refine || plan.planning.objective.is_constrained() {
+            self.refine(plan, &prep, &mut eval, hard)?;
         }
         Ok(eval)
     }
@@ -203,7 +215,10 @@ impl Evaluator {
         let items =
             verdicts::item_summaries(plan, prep, &course, &error_simulated, bounds.as_ref());
         let baseline = baseline::of(plan, prep, maps);
+        let uniformity =
+            uniformity::of_items(plan, prep, &linear, &course.after_standing, &baseline.temps);
         Ok(Evaluation {
+            uniformity,
             total_s: dwell.iter().sum(),
             dwell,
             status: sol.status,
@@ -227,6 +242,12 @@ impl Evaluator {
             cautions: &safety::CAUTIONS,
         })
     }
+}
+
+/// The safe minimum's first hard limits (None for the other objectives).
+fn first_hard(plan: &Plan, prep: &Prepared) -> Option<Hard> {
+    (plan.planning.objective == crate::model::Objective::SafeMinimum)
+        .then(|| Hard::initial(plan, prep))
 }
 
 /// Evaluates once with a fresh evaluator.

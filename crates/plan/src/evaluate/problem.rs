@@ -1,8 +1,9 @@
 //! The dwell problem of a plan: per-cell bands and start temperatures, the solve (warm when only
-//! targets changed) with its hard-cap loop, the controller's time quantum, and the linear
-//! prediction.
+//! targets changed; the constrained objectives and hard caps go to `goal.rs`), the controller's
+//! time quantum, and the linear prediction.
 
 use super::Evaluator;
+use super::goal::{self, Hard};
 use super::maps::PlanMaps;
 use super::prepared::Prepared;
 use crate::error::PlanError;
@@ -70,14 +71,21 @@ pub(super) fn quantise(dwell: &mut [f64], quantum: f64, budget: Option<f64>) {
 
 impl Evaluator {
     /// Solves the dwell problem: warm when only targets changed; with `gains`, on rates scaled per
-    /// cell (a refinement pass, solved afresh).
+    /// cell (a pass of the simulation loop, solved afresh). Plans with hard rows — a constrained
+    /// objective (`hard` holds the safe minimum's limits) or a zone cap — are solved exactly under
+    /// them.
     pub(super) fn solve(
         &mut self,
         plan: &Plan,
         prep: &Prepared,
         gains: Option<&[f64]>,
+        hard: Option<&Hard>,
     ) -> Result<traycast_solver::Solution, PlanError> {
         let maps = self.maps.as_ref().expect("maps computed first");
+        if plan.planning.objective.is_constrained() || prep.problem.cap.iter().any(Option::is_some)
+        {
+            return goal::solve(plan, prep, maps, gains, hard);
+        }
         let n = maps.cells;
         let rows = &prep.rows;
         let build = |g: Option<&[f64]>| -> Result<DwellSolver, PlanError> {
@@ -108,33 +116,11 @@ impl Evaluator {
         let targets = &prep.problem;
         let mut spec = Spec::band(targets.lo.clone(), targets.hi.clone(), maps.configs);
         spec.weights.clone_from(&targets.weight);
-        let caps = &targets.cap;
         spec.upper = vec![plan.oven.limit_s.unwrap_or(f64::INFINITY); maps.configs];
         spec.budget = plan.oven.budget_s;
         spec.time_penalty = plan.oven.time_penalty;
         spec.ridge = 0.0;
-        // Hard caps: raise the weight of cells above their cap until the linear prediction respects
-        // it (to 0.05 K) or the weights reach 10⁶× (then the excess is reported). Only then are the
-        // per-cell predictions needed; without caps the dwell-only path skips A·x.
-        if caps.iter().all(Option::is_none) {
-            return Ok(solver.solve_dwell(&spec)?);
-        }
-        let mut sol = solver.solve(&spec)?;
-        for _ in 0..6 {
-            let mut changed = false;
-            for (r, cap) in caps.iter().enumerate() {
-                if let Some(c) = cap
-                    && sol.achieved[r] > c + 0.05
-                {
-                    spec.weights[r] *= 10.0;
-                    changed = true;
-                }
-            }
-            if !changed {
-                break;
-            }
-            sol = solver.solve(&spec)?;
-        }
-        Ok(sol)
+        // Without hard rows the output needs no per-cell predictions: the dwell-only path.
+        Ok(solver.solve_dwell(&spec)?)
     }
 }

@@ -1,64 +1,186 @@
-//! Refinement: re-solve with each targeted cell's rates scaled by the gain the simulation showed
-//! (simulated rise ÷ linear rise at the end of heating), up to three passes, keeping the best.
+//! Simulation in the loop: solve → simulate → correct → re-solve, until the simulated outcome
+//! settles.
+//!
+//! Each pass scales every food cell's rates by the gain the simulation showed (simulated rise of
+//! its coldest point ÷ linear rise at the end of heating) and, for the safe minimum, moves each
+//! cell's hard floor (ceiling) by how far its simulated lower (upper) bound after standing missed
+//! the safety limit ([`Hard::correct`]). It stops when no food cell's simulated temperature after
+//! standing moved by more than [`TOLERANCE_K`], or after [`MAX_PASSES`] solves. The plan kept is
+//! the best seen, never a worse one: for the safe minimum, fewest items failing, then the smallest
+//! safety gap, then the band fit; for the other objectives, the band fit, then the shorter time.
 
 use super::Evaluator;
+use super::goal::Hard;
 use super::prepared::Prepared;
 use super::problem::rms;
 use super::report::{Evaluation, Refinement};
 use crate::error::PlanError;
-use crate::model::Plan;
+use crate::model::{Objective, Plan};
+
+/// The loop stops once the simulated outcome changes by less than this, K. Rounding the dwells to
+/// a 0.5 s controller step alone moves the outcome by about 0.3 K, so a tighter tolerance would
+/// chase the rounding.
+pub const TOLERANCE_K: f64 = 0.5;
+/// A cell whose coldest point ends heating at or above this has reached the boiling plateau, °C:
+/// its temperature no longer follows its rates.
+const PLATEAU_C: f64 = 98.0;
+
+/// Most solves the loop runs, the first included: five corrections.
+pub const MAX_PASSES: usize = 6;
 
 impl Evaluator {
-    /// Refines `eval` in place (see the module docs); records what the refinement achieved.
+    /// Runs the loop from `eval` (the first solve, made with `hard`) and leaves the best plan in
+    /// `eval`, with what the loop did in `eval.refinement`.
     pub(super) fn refine(
         &mut self,
         plan: &Plan,
         prep: &Prepared,
         eval: &mut Evaluation,
+        hard: Option<Hard>,
     ) -> Result<(), PlanError> {
-        // Re-solve with each targeted cell's rates scaled by the gain the simulation showed
-        // (simulated rise ÷ linear rise at the end of heating), up to three passes; keep the best.
-        let before = rms(eval
-            .error_simulated
-            .iter()
-            .copied()
-            .filter(|v| v.is_finite()));
-        let mut best = (before, None);
-        let mut gains = vec![1.0; plan.tray.cells()];
-        for _ in 0..3 {
-            let base = &best.1.as_ref().unwrap_or(eval).course;
-            let lin = &best.1.as_ref().unwrap_or(eval).linear;
-            for i in 0..plan.tray.cells() {
+        let safe = plan.planning.objective == Objective::SafeMinimum;
+        let n = plan.tray.cells();
+        let initial = hard.clone();
+        let mut hard = hard;
+        let rms_before = band_rms(eval);
+        let mut best = score(eval, safe);
+        let mut kept_later = false;
+        let mut current = eval.clone();
+        let mut gains = vec![1.0; n];
+        let (mut passes, mut change, mut converged) = (1, f64::NAN, false);
+        while passes < MAX_PASSES {
+            // The gain is the simulated rise over the linear one; a cell on the boiling plateau
+            // says nothing about its rates, and after the first correction each gain moves half
+            // way (in ratio) so the loop settles instead of ringing.
+            let damp = if passes == 1 { 1.0 } else { 0.5 };
+            for (i, g) in gains.iter_mut().enumerate() {
                 if let Some(k) = plan.item_at(i) {
                     let s0 = plan.items[k].start_c;
-                    let (sim_rise, lin_rise) = (base.end_of_heating[i] - s0, lin[i] - s0);
-                    if lin_rise > 1.0 {
-                        gains[i] = (gains[i] * sim_rise / lin_rise).clamp(0.05, 20.0);
+                    let end = current.course.end_of_heating[i];
+                    let (sim, lin) = (end - s0, current.linear[i] - s0);
+                    if lin > 1.0 && sim > 0.0 && end < PLATEAU_C {
+                        *g = (*g * (sim / lin).powf(damp)).clamp(0.05, 20.0);
                     }
                 }
             }
-            let sol = self.solve(plan, prep, Some(&gains))?;
-            let candidate = self.finish(plan, prep, &sol, Some(&gains))?;
-            let after = rms(candidate
-                .error_simulated
-                .iter()
-                .copied()
-                .filter(|v| v.is_finite()));
-            if after < best.0 {
-                best = (after, Some(candidate));
-            } else {
+            if let (Some(h), Some(first)) = (hard.as_mut(), initial.as_ref()) {
+                let (lower, upper) = judged_bounds(&current);
+                let short_kill: Vec<bool> = current
+                    .items
+                    .iter()
+                    .map(|it| {
+                        it.verdict.margin >= 0.0
+                            && it.verdict.kill.as_ref().is_some_and(|k| !k.met())
+                    })
+                    .collect();
+                h.correct(plan, prep, &lower, &upper, first, &short_kill);
+            }
+            let sol = self.solve(plan, prep, Some(&gains), hard.as_ref())?;
+            let next = self.finish(plan, prep, &sol, Some(&gains))?;
+            passes += 1;
+            change = outcome_change(&current, &next);
+            let s = score(&next, safe);
+            if better(&s, &best) {
+                best = s;
+                *eval = next.clone();
+                kept_later = true;
+            }
+            current = next;
+            if change < TOLERANCE_K {
+                converged = true;
                 break;
             }
         }
-        let kept = best.1.is_some();
-        if let Some(better) = best.1 {
-            *eval = better;
-        }
         eval.refinement = Some(Refinement {
-            rms_before: before,
-            rms_after: best.0,
-            kept,
+            rms_before,
+            rms_after: band_rms(eval),
+            kept: kept_later,
+            passes,
+            change_k: change,
+            converged,
+            tolerance_k: TOLERANCE_K,
+            safety_gap_k: safety_gap(eval),
         });
         Ok(())
     }
+}
+
+/// How far the outcome a plan is judged on moved between two passes, K: each item's judged
+/// coldest and warmest points (on the bounds when there are any) and each zone's RMS distance
+/// outside its band after standing. NaN counts as no convergence.
+fn outcome_change(a: &Evaluation, b: &Evaluation) -> f64 {
+    let items = a.items.iter().zip(&b.items).flat_map(|(x, y)| {
+        [
+            x.verdict.coldest - y.verdict.coldest,
+            x.verdict.warmest - y.verdict.warmest,
+        ]
+    });
+    let zones = a
+        .zones
+        .iter()
+        .zip(&b.zones)
+        .map(|(x, y)| x.rms_simulated - y.rms_simulated);
+    items.chain(zones).fold(
+        0.0f64,
+        |acc, v| {
+            if v.is_nan() { acc } else { acc.max(v.abs()) }
+        },
+    )
+}
+
+fn band_rms(e: &Evaluation) -> f64 {
+    rms(e.error_simulated.iter().copied().filter(|v| v.is_finite()))
+}
+
+/// The per-cell values the verdicts are judged on: the bounds when there are any, else the coldest
+/// and hottest points after standing.
+fn judged_bounds(e: &Evaluation) -> (Vec<f64>, Vec<f64>) {
+    match &e.bounds {
+        Some(b) => (b.lower.clone(), b.upper.clone()),
+        None => (
+            e.course.after_standing.clone(),
+            e.course.hottest_after_standing.clone(),
+        ),
+    }
+}
+
+/// The largest distance of an item's judged point beyond its temperature limit, K (0 if none).
+fn safety_gap(e: &Evaluation) -> f64 {
+    e.items
+        .iter()
+        .map(|it| (-it.verdict.margin).max(0.0))
+        .fold(0.0, |a, v| if v.is_nan() { f64::NAN } else { a.max(v) })
+}
+
+/// Lower is better, compared in order.
+fn score(e: &Evaluation, safe: bool) -> [f64; 4] {
+    if safe {
+        let failing = e.items.iter().filter(|it| !it.verdict.safe).count() as f64;
+        let gap = safety_gap(e);
+        [
+            failing,
+            if gap.is_nan() { f64::INFINITY } else { gap },
+            band_rms(e),
+            e.total_s,
+        ]
+    } else {
+        [band_rms(e), e.total_s, 0.0, 0.0]
+    }
+}
+
+/// `a` beats `b` by more than rounding in the first entry that differs.
+fn better(a: &[f64; 4], b: &[f64; 4]) -> bool {
+    for (x, y) in a.iter().zip(b) {
+        let tol = 1e-9 * (1.0 + y.abs());
+        if x.is_nan() {
+            return false;
+        }
+        if *x < y - tol {
+            return true;
+        }
+        if *x > y + tol {
+            return false;
+        }
+    }
+    false
 }

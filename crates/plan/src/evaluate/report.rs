@@ -106,21 +106,34 @@ pub struct CellBounds {
 pub struct Baseline {
     /// Heating time: until the coldest targeted cell reaches its band minimum (capped by the budget).
     pub seconds: f64,
+    /// Each cell's temperature at the end of it, °C (linear prediction; NaN off the food).
+    pub temps: Vec<f64>,
     /// RMS distance outside the bands, K (linear prediction).
     pub rms_linear: f64,
     /// Share of targeted cells inside their bands.
     pub coverage_linear: f64,
 }
 
-/// The outcome of a refinement pass.
+/// What the simulation loop (solve → simulate → correct → re-solve) did.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Refinement {
-    /// RMS band distance after standing before refining, K.
+    /// RMS band distance after standing of the first solve, K.
     pub rms_before: f64,
-    /// The same after re-solving with the simulation's correction, K.
+    /// The same for the plan kept, K.
     pub rms_after: f64,
-    /// Whether the refined plan was kept (it is only when it helps).
+    /// Whether a later pass was kept (it is only when it is better; see `evaluate::refine`).
     pub kept: bool,
+    /// Solves run, the first included.
+    pub passes: usize,
+    /// Largest change of any food cell's simulated temperature after standing in the last pass, K.
+    pub change_k: f64,
+    /// The change fell below the loop's tolerance before its cap.
+    pub converged: bool,
+    /// The tolerance, K.
+    pub tolerance_k: f64,
+    /// In the plan kept, the largest distance of an item's judged point beyond its safety limit
+    /// (K; 0 when every item holds, NaN when an item could not be judged).
+    pub safety_gap_k: f64,
 }
 
 /// Everything a front end shows.
@@ -150,6 +163,8 @@ pub struct Evaluation {
     pub items: Vec<ItemSummary>,
     /// Unsteered comparison.
     pub baseline: Baseline,
+    /// Per item: how evenly it heats, steered (linear and simulated) and unsteered.
+    pub uniformity: Vec<super::uniformity::ItemUniformity>,
     /// Where the maps came from.
     pub provenance: Provenance,
     /// Things the user should know (replay window, caps, budget).
@@ -186,7 +201,7 @@ pub struct Quick {
 /// Options of an evaluation.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct Options {
-    /// Re-solve once with the simulation's correction.
+    /// Run the simulation loop for a band fit too (the constrained objectives always run it).
     pub refine: bool,
 }
 

@@ -247,6 +247,20 @@ impl SafetyCategory {
         }
     }
 
+    /// The temperature limits of this category's requirements, °C: the highest minimum its coldest
+    /// point must reach, and the lowest maximum its warmest point must stay under (either may be
+    /// absent).
+    pub fn limits(self) -> (Option<f64>, Option<f64>) {
+        let reqs = self.requirements();
+        let pick = |minimum: bool, f: fn(f64, f64) -> f64| {
+            reqs.iter()
+                .filter(|r| r.minimum == minimum)
+                .map(|r| r.celsius)
+                .reduce(f)
+        };
+        (pick(true, f64::max), pick(false, f64::min))
+    }
+
     /// The log10 reduction of its target pathogen this category must reach at its coldest point,
     /// through heating and standing; None where no kill step is asked for (plant foods held hot,
     /// chilled items).
