@@ -3,6 +3,7 @@
 use crate::cards::SafetyCards;
 use crate::draw;
 use crate::paint::{Tool, paint};
+use crate::planning::{PlanningPanel, PlanningReport};
 use crate::simview::{SimView, SimViewPicker};
 use crate::storage;
 use crate::surface;
@@ -14,7 +15,7 @@ use traycast_plan::evaluate::{Evaluation, Evaluator, Options, Quick};
 use traycast_plan::library::MapLibrary;
 use traycast_plan::model::{FoodItem, MapSource, Plan, Sequencing, Zone};
 use traycast_plan::runs::{HeatingRuns, ReadOptions};
-use traycast_plan::{demos, wire};
+use traycast_plan::{Planning, demos, wire};
 use traycast_thermal::catalogue::CATALOGUE;
 use wasm_bindgen::JsCast;
 
@@ -701,6 +702,7 @@ pub fn App() -> impl IntoView {
                 <label title="Heat the tray stores under each square metre of food; 0: an insulated bottom that stores none (about 1400 for a thin plastic tray)">"Tray heat capacity (J/(m²·K))"<input type="number" min="0" max="1000000" step="100" prop:value=move || plan.with(|p| p.heating.tray_capacity.to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.heating.tray_capacity = v); } /></label>
                 <label title="How much weaker (or stronger) a real oven may heat than the maps say; the verdicts are judged on the worst (default 15 %: warm ovens lose output)">"Oven power varies by ± (%)"<input id="variation-power" type="number" min="0" max="50" step="1" prop:value=move || plan.with(|p| (100.0 * p.variation.oven_power).round().to_string()) on:change=move |ev| if let Some(v) = num(&ev) { edit(&|p| p.variation.oven_power = v / 100.0); } /></label>
                 <label title="How much colder (or warmer) the food may start than planned; the verdicts are judged on the worst">{move || format!("Start varies by ± ({})", unit.get().diff_symbol())}<input id="variation-start" type="number" min="0" step="0.5" prop:value=move || plan.with(|p| unit.get().diff(p.variation.start_k).to_string()) on:change=move |ev| if let Some(v) = num(&ev) { let k = v / unit.get_untracked().diff(1.0); edit(&|p| p.variation.start_k = k); } /></label>
+                <PlanningPanel plan=plan set=Callback::new(move |planning: Planning| edit(&|p| p.planning = planning)) />
                 <h2>"Files"</h2>
                 <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_import_library /></label>
                 <label class="file">"Calibrate from heating runs (CSV)"<input id="import-runs" type="file" accept=".csv,text/csv" on:change=on_import_runs /></label>
@@ -730,6 +732,7 @@ pub fn App() -> impl IntoView {
                 <canvas id="time-course" node_ref=course_ref></canvas>
                 <h2>"Outcome"</h2>
                 <div id="summary">{summary}</div>
+                <PlanningReport plan=plan eval=eval />
                 {quality_view}
                 <SafetyCards plan=plan eval=eval unit=unit />
             </section>

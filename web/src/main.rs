@@ -7,6 +7,7 @@ mod app;
 mod cards;
 mod draw;
 mod paint;
+mod planning;
 mod simview;
 mod storage;
 mod surface;

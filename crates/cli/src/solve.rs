@@ -251,6 +251,12 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
             },
             num(r.safety_gap_k, 1)
         );
+        if let Some(why) = &r.stopped {
+            let _ = writeln!(
+                s,
+                "  The loop stopped early, keeping the best plan so far: {why}"
+            );
+        }
     }
     for w in &e.warnings {
         let _ = writeln!(s, "Note: {w}");

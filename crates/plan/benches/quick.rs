@@ -1,10 +1,14 @@
 //! The warm stroke: `Evaluator::quick` after one cell's target changes, on the benchmark tray
 //! (48 × 32 cells, 96 configurations, ±5 K bands), and in the same run the reference it wraps: the
-//! solver's own warm dwell-only re-solve of the same problem.
+//! solver's own warm dwell-only re-solve of the same problem. Then the same strokes planned for
+//! the constrained objectives (max-margin; the safe minimum with a 600 s budget, which it needs
+//! on this tray), each started from the stroke before, and one full evaluation of each objective
+//! (the constrained ones with the simulation in the loop) against the band fit's.
 //! Run: `cargo bench -p traycast-plan --bench quick`.
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
+use traycast_plan::Objective;
 use traycast_plan::demos::benchmark_tray;
 use traycast_plan::evaluate::{Evaluator, Options, Prepared};
 use traycast_solver::{DwellSolver, Rates, Spec};
@@ -63,5 +67,44 @@ fn bench(c: &mut Criterion) {
     });
 }
 
-criterion_group!(benches, bench);
+fn constrained(c: &mut Criterion) {
+    let mut g = c.benchmark_group("objectives");
+    g.sample_size(10);
+    g.measurement_time(std::time::Duration::from_secs(4));
+    for objective in [
+        Objective::BandFit,
+        Objective::MaxMargin,
+        Objective::SafeMinimum,
+    ] {
+        let mut base = benchmark_tray();
+        base.planning.objective = objective;
+        base.oven.budget_s = Some(600.0);
+        let strokes: Vec<_> = (0..64)
+            .map(|k| {
+                let mut q = base.clone();
+                let i = (k * 37) % q.food.len();
+                q.zone[i] = 1 + (q.zone[i] % 2);
+                q
+            })
+            .collect();
+        let mut ev = Evaluator::new();
+        ev.quick(&base).unwrap();
+        let mut k = 0;
+        g.bench_function(format!("warm stroke/{}", objective.as_str()), |b| {
+            b.iter(|| {
+                k = (k + 1) % strokes.len();
+                black_box(ev.quick(&strokes[k]).unwrap())
+            })
+        });
+        g.bench_function(format!("full evaluation/{}", objective.as_str()), |b| {
+            b.iter(|| {
+                k = (k + 1) % strokes.len();
+                black_box(ev.evaluate(&strokes[k], Options::default()).unwrap())
+            })
+        });
+    }
+    g.finish();
+}
+
+criterion_group!(benches, bench, constrained);
 criterion_main!(benches);

@@ -18,7 +18,7 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
         "loop": e.refinement.as_ref().map(|r| serde_json::json!({
             "passes": r.passes, "converged": r.converged, "change_k": finite(&r.change_k),
             "tolerance_k": r.tolerance_k, "rms_before_k": finite(&r.rms_before), "rms_after_k": finite(&r.rms_after),
-            "kept_later_pass": r.kept, "safety_gap_k": finite(&r.safety_gap_k),
+            "kept_later_pass": r.kept, "safety_gap_k": finite(&r.safety_gap_k), "stopped": r.stopped,
         })),
         "zones": plan.zones.iter().zip(&e.zones).map(|(z, r)| serde_json::json!({
             "name": z.name, "coverage_linear": r.coverage_linear, "coverage_simulated": r.coverage_simulated,

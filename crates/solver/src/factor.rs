@@ -92,6 +92,19 @@ impl Factor {
         Append::Added
     }
 
+    /// Appends variable `j` whose new squared pivot `d2` (the squared norm of its column's part
+    /// outside the span of the others) the caller has computed more accurately than the
+    /// subtraction in [`Factor::append`] would; `col` as there.
+    pub fn append_pivot(&mut self, j: usize, col: &[f64], d2: f64) {
+        let k = self.len();
+        let mut l = col.to_vec();
+        self.forward(&mut l);
+        let base = k * self.cap;
+        self.l[base..base + k].copy_from_slice(&l);
+        self.l[base + k] = d2.sqrt();
+        self.order.push(j);
+    }
+
     /// Removes the variable at factor position `p`.
     pub fn remove(&mut self, p: usize) {
         let k = self.len();

@@ -58,7 +58,7 @@ pub mod synthetic;
 
 pub use constrained::{
     Certificate, Constraint, Goal, Infeasible, MARGIN_TIME_PRICE, Multipliers, Outcome, Planned,
-    Refusal, Task, certify, solve_task,
+    Refusal, Task, certify, solve_task, solve_task_from,
 };
 pub use error::{Field, InputError};
 pub use problem::{

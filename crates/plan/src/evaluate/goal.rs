@@ -16,8 +16,10 @@ use super::prepared::Prepared;
 use crate::error::{Place, PlanError};
 use crate::model::{Objective, Plan};
 use traycast_solver::{
-    Constraint, Goal, Iterations, Outcome, Rates, Refusal, Solution, Spec, Status, Task, solve_task,
+    Constraint, Goal, Iterations, Outcome, Planned, Rates, Refusal, Solution, Spec, Status, Task,
+    solve_task_from,
 };
+use traycast_thermal::composition::BOILING_POINT;
 
 /// Per-cell hard limits on the linear rise for the safe minimum, K (−∞ / +∞ where none).
 #[derive(Clone, Debug, PartialEq)]
@@ -86,7 +88,11 @@ impl Hard {
                     let gap = m - lower[i];
                     let step = relax(gap);
                     let bump = if short_kill[item] { 2.0 } else { 0.0 };
-                    let new = (self.floor[i] + step + bump).max(initial.floor[i]);
+                    // More heat than brings the column to the boiling point only boils water
+                    // off: a coldest point still short then is short of conduction and time
+                    // (a longer stand), not of power, and the floor stops there.
+                    let top = (BOILING_POINT - plan.items[item].start_c).max(initial.floor[i]);
+                    let new = (self.floor[i] + step + bump).max(initial.floor[i]).min(top);
                     moved = moved.max((new - self.floor[i]).abs());
                     self.floor[i] = new;
                 }
@@ -134,6 +140,7 @@ pub(super) fn solve(
     maps: &PlanMaps,
     gains: Option<&[f64]>,
     hard: Option<&Hard>,
+    warm: &mut Option<Planned>,
 ) -> Result<Solution, PlanError> {
     let objective = plan.planning.objective;
     let (n, configs) = (maps.cells, maps.configs);
@@ -237,7 +244,12 @@ pub(super) fn solve(
     for (r, row) in rows.iter().enumerate() {
         (task.floor[r], task.ceiling[r]) = limits(row.cell);
     }
-    let planned = solve_task(&rates, &task).map_err(|e| refused(plan, &rows, &task, e))?;
+    // The previous answer (the stroke before, or the loop's last pass) warm-starts this one; a
+    // start that does not fit is ignored, and the answer is the same either way.
+    let from = warm.as_ref().filter(|p| p.dwell.len() == configs);
+    let planned =
+        solve_task_from(&rates, &task, from).map_err(|e| refused(plan, &rows, &task, e))?;
+    *warm = Some(planned.clone());
     let status = match planned.outcome {
         Outcome::Uncertified => Status::Uncertified,
         Outcome::Optimal if planned.multipliers.budget > 0.0 => Status::BudgetBinding,
@@ -255,7 +267,7 @@ pub(super) fn solve(
             budget: 0,
         },
         kkt_residual: planned.certificate.residual(),
-        dwell: planned.dwell,
+        dwell: planned.dwell.clone(),
     })
 }
 

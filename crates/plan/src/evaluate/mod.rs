@@ -67,6 +67,8 @@ pub struct Evaluator {
     maps: Option<PlanMaps>,
     mats: Vec<Material>,
     solver: Option<(Vec<usize>, DwellSolver)>,
+    /// The last constrained answer: the next constrained solve starts from it.
+    planned: Option<traycast_solver::Planned>,
 }
 
 impl Evaluator {

@@ -48,6 +48,7 @@ impl Evaluator {
         let mut current = eval.clone();
         let mut gains = vec![1.0; n];
         let (mut passes, mut change, mut converged) = (1, f64::NAN, false);
+        let mut stopped = None;
         while passes < MAX_PASSES {
             // The gain is the simulated rise over the linear one; a cell on the boiling plateau
             // says nothing about its rates, and after the first correction each gain moves half
@@ -75,7 +76,14 @@ impl Evaluator {
                     .collect();
                 h.correct(plan, prep, &lower, &upper, first, &short_kill);
             }
-            let sol = self.solve(plan, prep, Some(&gains), hard.as_ref())?;
+            // A correction no schedule can meet ends the loop; the best plan so far stands.
+            let sol = match self.solve(plan, prep, Some(&gains), hard.as_ref()) {
+                Ok(sol) => sol,
+                Err(e) => {
+                    stopped = Some(e.message);
+                    break;
+                }
+            };
             let next = self.finish(plan, prep, &sol, Some(&gains))?;
             passes += 1;
             change = outcome_change(&current, &next);
@@ -100,6 +108,7 @@ impl Evaluator {
             converged,
             tolerance_k: TOLERANCE_K,
             safety_gap_k: safety_gap(eval),
+            stopped,
         });
         Ok(())
     }

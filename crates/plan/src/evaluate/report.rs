@@ -134,6 +134,8 @@ pub struct Refinement {
     /// In the plan kept, the largest distance of an item's judged point beyond its safety limit
     /// (K; 0 when every item holds, NaN when an item could not be judged).
     pub safety_gap_k: f64,
+    /// Why the loop stopped early, when a corrected problem had no schedule.
+    pub stopped: Option<String>,
 }
 
 /// Everything a front end shows.

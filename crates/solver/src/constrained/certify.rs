@@ -6,7 +6,7 @@
 //! task and the rates alone — it shares no state with the methods that produced the answer, so
 //! tests and users can use it as an oracle.
 
-use super::rows::{Constraint, Rows};
+use super::rows::{Constraint, Rows, largest};
 use super::{Goal, MARGIN_TIME_PRICE, Multipliers, Task};
 use crate::problem::{Rates, band_distance};
 
@@ -99,11 +99,12 @@ pub fn certify(
     let mut gty_abs = vec![0.0; z.len()];
     let (mut infeasibility, mut ymax, mut yneg) = (0.0f64, 0.0f64, 0.0f64);
     let (mut comp, mut comp_scale, mut dual) = (0.0, 0.0, 0.0);
+    let zmax = largest(&z);
     for r in 0..rows.list.len() {
         if rows.list[r] == Constraint::MarginCap {
             continue;
         }
-        let scale = rows.scale(r, &z);
+        let scale = rows.scale(r, zmax);
         let slack = rows.value(r, &z, &ax) - rows.rhs[r];
         infeasibility = infeasibility.max((-slack / scale).max(0.0));
         let y = multipliers.get(rows.list[r]);
@@ -121,12 +122,16 @@ pub fn certify(
     }
     // Multipliers recorded for constraints the task does not have count against the answer.
     let absent = absent_multipliers(task, multipliers);
+    // Each variable's mismatch against its own scale, but never against less than the largest
+    // natural scale of the problem: a configuration that heats nothing has no scale of its own,
+    // and rounding on it is measured against the gradients that matter.
+    let floor = natural.iter().fold(0.0f64, |a, &v| a.max(v));
     let stationarity = grad
         .iter()
         .zip(&gty)
         .zip(&gty_abs)
         .zip(&natural)
-        .map(|(((g, gy), ga), s)| (g - gy).abs() / (g.abs() + ga.abs() + s + 1e-300))
+        .map(|(((g, gy), ga), s)| (g - gy).abs() / (g.abs() + ga.abs() + s.max(floor) + 1e-300))
         .fold(
             0.0f64,
             |acc, v| if v.is_nan() { f64::NAN } else { acc.max(v) },

@@ -10,21 +10,25 @@
 //!
 //! H = 2(A_Oᵀ W A_O + λI) can be singular (a configuration no outside cell sees, or two
 //! configurations that heat alike), so each piece carries the proximal term ρ/2·‖x − xₖ‖²
-//! (ρ = [`PROXIMAL`] × the largest curvature any piece can have): strictly convex and well conditioned, yet with no
+//! (ρⱼ = [`PROXIMAL`] × the largest curvature configuration j can have in any piece): strictly convex and well conditioned, yet with no
 //! bias at the answer, where x stops moving — the proximal point method, which ends in finitely
 //! many steps on polyhedral problems like these (Ferris 1991, *Math. Programming* 50:359–366).
 
 use nalgebra::DMatrix;
 
-use super::rows::Rows;
+use super::rows::{Constraint, Rows};
 use super::{Multipliers, Refusal, Task, dual_qp};
 use crate::problem::{Rates, Spec, band_distance};
 
-/// Weight of the proximal term, relative to the largest curvature.
+/// Weight of the proximal term, relative to each configuration's largest curvature.
 const PROXIMAL: f64 = 1e-6;
-/// A proximal pass that moves x by less than this (relative) has settled: the proximal term's
-/// pull ρ·Δx is then below 1e-14 of the gradient's scale.
-const SETTLED: f64 = 1e-8;
+/// The least curvature a configuration's proximal weight is taken from, relative to the largest
+/// (a configuration that heats nothing still needs a pull).
+const FLOOR: f64 = 0.1;
+/// A proximal pass whose pull ρ·Δx is below this fraction of the gradient's scale has settled.
+const SETTLED: f64 = 1e-11;
+/// The most the pull may be stiffened after a piece's solve lost its way.
+const STIFFEST: f64 = 1e7;
 /// Newton passes before giving up.
 const PASSES: usize = 60;
 
@@ -33,33 +37,90 @@ pub(super) struct Fit {
     pub multipliers: Multipliers,
     pub changes: usize,
     pub passes: usize,
+    pub active: Vec<Constraint>,
 }
 
-pub(super) fn solve(rates: &Rates, task: &Task, spec: &Spec) -> Result<Fit, Refusal> {
+pub(super) fn solve(
+    rates: &Rates,
+    task: &Task,
+    spec: &Spec,
+    hint: &[Constraint],
+    start: Option<&[f64]>,
+) -> Result<Fit, Refusal> {
     let a = rates.matrix();
     let (m, n) = a.shape();
     let rows = Rows::new(a, task, None);
-    let mut x = vec![0.0; n];
-    let mut ax = vec![0.0; m];
+    // A previous answer's dwells classify the cells nearly as the answer will; its active rows go
+    // first into each piece's solve.
+    let mut x = start.map_or_else(|| vec![0.0; n], <[f64]>::to_vec);
+    let mut ax = rates.apply(&x);
+    let first: Vec<usize> = {
+        let index: std::collections::HashMap<Constraint, usize> =
+            rows.list.iter().enumerate().map(|(r, &c)| (c, r)).collect();
+        hint.iter().filter_map(|c| index.get(c).copied()).collect()
+    };
     let mut changes = 0;
     let mut have_feasible = false;
-    // ρ from the largest curvature any piece can have (every cell outside its band).
-    let curvature = (0..n)
+    // ρⱼ from the largest curvature configuration j can have (every cell outside its band): a
+    // weak configuration gets a weak pull, so its proximal steps are not slowed by a strong one's.
+    let curvature: Vec<f64> = (0..n)
         .map(|j| {
             (0..m)
                 .map(|i| 2.0 * spec.weights[i] * a[(i, j)] * a[(i, j)])
                 .sum::<f64>()
         })
-        .fold(0.0f64, f64::max);
-    let rho = if curvature > 0.0 {
-        PROXIMAL * curvature
-    } else {
-        1.0
-    };
+        .collect();
+    let most = curvature.iter().fold(0.0f64, |acc, &v| acc.max(v));
+    let rho: Vec<f64> = curvature
+        .iter()
+        .map(|&c| {
+            if most == 0.0 {
+                1.0
+            } else if c == 0.0 {
+                // A configuration that heats no cell moves only for the time price and the
+                // limits, and is best left at zero: a full-strength pull keeps its steps (and
+                // their rounding) small.
+                most
+            } else {
+                PROXIMAL * c.max(FLOOR * most)
+            }
+        })
+        .collect();
+    let mut piece = Piece::new(n, m);
+    // While the pieces agree but x still creeps (a configuration far weaker than the others has
+    // far to go), the pull is weakened tenfold a pass; a new piece restores it.
+    let mut shrink = 1.0;
+    // Raised when a piece's solve lost its way in rounding (see below).
+    let mut stiff = 1.0;
     for pass in 0..PASSES {
         let class: Vec<i8> = (0..m).map(|i| side(ax[i], spec, i)).collect();
-        let (h, c) = piece(a, spec, &class, &x, rho);
-        let qp = dual_qp::solve(&rows, &h, &c)?;
+        piece.update(a, spec, &class);
+        let pull: Vec<f64> = rho.iter().map(|r| r * shrink * stiff).collect();
+        let (h, c) = piece.quadratic(spec, &x, &pull);
+        let qp = match dual_qp::solve(&rows, &h, &c, &first) {
+            Ok(qp) => qp,
+            // A weakened pull the factorisation cannot take: back to the full one.
+            Err(Refusal::IterationLimit(0)) if shrink < 1.0 => {
+                shrink = 1.0;
+                continue;
+            }
+            // The dual method starts far outside the feasible set and can lose a hard row in
+            // rounding on badly scaled data. The linear programme decides feasibility exactly:
+            // infeasible, its refusal stands; feasible, its point becomes the centre of a much
+            // stiffer pull, whose short steps keep the rounding small.
+            Err(Refusal::Infeasible(_)) if stiff < STIFFEST => {
+                let mut lp_task = task.clone();
+                lp_task.goal = super::Goal::Shortest;
+                let lp = super::simplex::solve(rates, &lp_task, &[])?;
+                x = lp.dwell;
+                ax = rates.apply(&x);
+                have_feasible = true;
+                stiff *= 1e3;
+                shrink = 1.0;
+                continue;
+            }
+            Err(e) => return Err(e),
+        };
         changes += qp.changes;
         let ax_new = rates.apply(&qp.x);
         // The model held if every cell it misclassified sits on its band edge (to rounding),
@@ -69,14 +130,18 @@ pub(super) fn solve(rates: &Rates, task: &Task, spec: &Spec) -> Result<Fit, Refu
                 || band_distance(ax_new[i], spec.lo[i], spec.hi[i]).abs()
                     <= 1e-10 * (1.0 + spec.lo[i].abs().min(spec.hi[i].abs()))
         });
-        let moved =
-            qp.x.iter()
-                .zip(&x)
-                .fold(0.0f64, |acc, (p, q)| acc.max((p - q).abs()));
-        let size = qp.x.iter().fold(1.0f64, |acc, v| acc.max(v.abs()));
-        if same && have_feasible && moved <= SETTLED * size {
+        // On its own piece the answer satisfies the optimality conditions of f up to the
+        // proximal term's pull ρ·(x̂ − xₖ): small against the gradient's scale, it has settled.
+        let pull = (0..n)
+            .map(|j| rho[j] * shrink * stiff * (qp.x[j] - x[j]).abs())
+            .fold(0.0f64, f64::max);
+        let size = qp.x.iter().fold(0.0f64, |acc, v| acc.max(v.abs()));
+        let gradient = piece.atb.iter().fold(0.0f64, |a, v| a.max(2.0 * v.abs()))
+            + most * size
+            + spec.time_penalty;
+        if same && have_feasible && pull <= SETTLED * gradient.max(f64::MIN_POSITIVE) {
             let mut multipliers = Multipliers::zeros(m, n);
-            for (r, y) in qp.active {
+            for &(r, y) in &qp.active {
                 multipliers.set(rows.list[r], y.max(0.0));
             }
             return Ok(Fit {
@@ -84,8 +149,14 @@ pub(super) fn solve(rates: &Rates, task: &Task, spec: &Spec) -> Result<Fit, Refu
                 multipliers,
                 changes,
                 passes: pass + 1,
+                active: qp.active.iter().map(|&(r, _)| rows.list[r]).collect(),
             });
         }
+        shrink = if same && have_feasible {
+            (shrink * 0.1).max(1e-3)
+        } else {
+            1.0
+        };
         if same || !have_feasible {
             // The first feasible point is taken whole, and so is a step that stays on its piece
             // (a proximal step); otherwise every move stays on segments between feasible points.
@@ -119,35 +190,68 @@ fn side(z: f64, spec: &Spec, i: usize) -> i8 {
     }
 }
 
-/// H and c of the quadratic piece for one classification plus the proximal term
-/// ρ/2·‖x − centre‖²: q = ½xᵀHx + cᵀx + const.
-fn piece(
-    a: &DMatrix<f64>,
-    spec: &Spec,
-    class: &[i8],
-    centre: &[f64],
-    rho: f64,
-) -> (DMatrix<f64>, Vec<f64>) {
-    let n = a.ncols();
-    let out: Vec<usize> = (0..class.len()).filter(|&i| class[i] != 0).collect();
-    let mut ao = DMatrix::zeros(out.len(), n);
-    let mut wb = vec![0.0; out.len()];
-    for (k, &i) in out.iter().enumerate() {
-        let sw = spec.weights[i].sqrt();
-        for j in 0..n {
-            ao[(k, j)] = sw * a[(i, j)];
+/// Σ_out wᵢ·aᵢaᵢᵀ and Σ_out wᵢ·bᵢ·aᵢ over the cells outside their bands, kept up to date as the
+/// classification changes: a pass that moves k cells across an edge costs k rank-one updates.
+struct Piece {
+    class: Vec<i8>,
+    gram: DMatrix<f64>,
+    atb: Vec<f64>,
+}
+
+impl Piece {
+    fn new(n: usize, m: usize) -> Self {
+        Piece {
+            class: vec![0; m],
+            gram: DMatrix::zeros(n, n),
+            atb: vec![0.0; n],
         }
-        wb[k] = sw * if class[i] < 0 { spec.lo[i] } else { spec.hi[i] };
     }
-    let mut h = ao.tr_mul(&ao) * 2.0;
-    for j in 0..n {
-        h[(j, j)] += 2.0 * spec.ridge + rho;
+
+    /// Moves to the classification `class`.
+    fn update(&mut self, a: &DMatrix<f64>, spec: &Spec, class: &[i8]) {
+        let n = a.ncols();
+        for (i, (&new, old)) in class.iter().zip(self.class.iter_mut()).enumerate() {
+            if new == *old {
+                continue;
+            }
+            for (c, sign) in [(*old, -1.0), (new, 1.0)] {
+                if c == 0 {
+                    continue;
+                }
+                let w = sign * spec.weights[i];
+                let b = if c < 0 { spec.lo[i] } else { spec.hi[i] };
+                let row: Vec<f64> = (0..n).map(|j| a[(i, j)]).collect();
+                for (p, &ap) in row.iter().enumerate() {
+                    if ap == 0.0 {
+                        continue;
+                    }
+                    self.atb[p] += w * b * ap;
+                    for (q, &aq) in row.iter().enumerate().skip(p) {
+                        self.gram[(p, q)] += w * ap * aq;
+                    }
+                }
+            }
+            *old = new;
+        }
     }
-    let atb = ao.tr_mul(&nalgebra::DVector::from_column_slice(&wb));
-    let c = (0..n)
-        .map(|j| -2.0 * atb[j] + spec.time_penalty - rho * centre[j])
-        .collect();
-    (h, c)
+
+    /// H and c of the piece plus the proximal term ρ/2·‖x − centre‖²: q = ½xᵀHx + cᵀx + const.
+    fn quadratic(&self, spec: &Spec, centre: &[f64], rho: &[f64]) -> (DMatrix<f64>, Vec<f64>) {
+        let n = self.atb.len();
+        let mut h = DMatrix::zeros(n, n);
+        for p in 0..n {
+            for q in p..n {
+                let v = 2.0 * self.gram[(p, q)];
+                h[(p, q)] = v;
+                h[(q, p)] = v;
+            }
+            h[(p, p)] += 2.0 * spec.ridge + rho[p];
+        }
+        let c = (0..n)
+            .map(|j| -2.0 * self.atb[j] + spec.time_penalty - rho[j] * centre[j])
+            .collect();
+        (h, c)
+    }
 }
 
 /// The minimiser over t ∈ [0, 1] of f(x + t·d), with A·x and A·d given: bisection on the

@@ -244,6 +244,9 @@ pub struct Planned {
     pub iterations: usize,
     /// Finite-Newton passes (fit goal only).
     pub passes: usize,
+    /// The constraints held with equality at the answer (the simplex basis, or the active set of
+    /// the fit's last piece). Handed back to [`solve_task_from`], they warm-start the next solve.
+    pub active: Vec<Constraint>,
 }
 
 impl Planned {
@@ -322,18 +325,47 @@ impl std::error::Error for Refusal {}
 
 /// Solves a constrained planning task exactly, or says why not.
 pub fn solve_task(rates: &Rates, task: &Task) -> Result<Planned, Refusal> {
+    solve_task_from(rates, task, None)
+}
+
+/// [`solve_task`] started from a previous answer (of the same rates, after a few bands changed,
+/// say): its [`Planned::active`] constraints and, for the fit, its dwells. The answer is the same
+/// as from a cold start; only the work differs. A previous answer that does not fit the task is
+/// ignored.
+pub fn solve_task_from(
+    rates: &Rates,
+    task: &Task,
+    from: Option<&Planned>,
+) -> Result<Planned, Refusal> {
+    let hint = from.map_or(&[][..], |p| &p.active[..]);
     task.validate(rates.cells(), rates.configs())?;
     if let Some(c) = crossed_row(task) {
         return Err(Refusal::Infeasible(c));
     }
-    let (dwell, margin, multipliers, iterations, passes) = match &task.goal {
+    let (dwell, margin, multipliers, iterations, passes, active) = match &task.goal {
         Goal::Shortest | Goal::MaxMargin => {
-            let lp = simplex::solve(rates, task)?;
-            (lp.dwell, lp.margin, lp.multipliers, lp.pivots, 0)
+            let lp = simplex::solve(rates, task, hint)?;
+            (lp.dwell, lp.margin, lp.multipliers, lp.pivots, 0, lp.basis)
         }
         Goal::Fit(spec) => {
-            let qp = fit::solve(rates, task, spec)?;
-            (qp.dwell, None, qp.multipliers, qp.changes, qp.passes)
+            let start = from
+                .map(|p| &p.dwell[..])
+                .filter(|d| d.len() == rates.configs());
+            // The warm start only saves work: if it runs out of steps, the cold start decides.
+            let qp = match fit::solve(rates, task, spec, hint, start) {
+                Err(Refusal::IterationLimit(_)) if from.is_some() => {
+                    fit::solve(rates, task, spec, &[], None)?
+                }
+                other => other?,
+            };
+            (
+                qp.dwell,
+                None,
+                qp.multipliers,
+                qp.changes,
+                qp.passes,
+                qp.active,
+            )
         }
     };
     let certificate = certify(rates, task, &dwell, margin, &multipliers);
@@ -358,6 +390,7 @@ pub fn solve_task(rates: &Rates, task: &Task) -> Result<Planned, Refusal> {
         outcome,
         iterations,
         passes,
+        active,
     })
 }
 

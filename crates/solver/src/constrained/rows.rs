@@ -127,6 +127,16 @@ impl<'a> Rows<'a> {
         }
     }
 
+    /// Gᵣ·z computed from z alone (O(n) for a cell's row), for when A·x is not at hand.
+    pub fn value_direct(&self, r: usize, z: &[f64]) -> f64 {
+        let dot = |i: usize| -> f64 { (0..self.n).map(|j| self.a[(i, j)] * z[j]).sum() };
+        match self.list[r] {
+            Constraint::Floor(i) => dot(i) - self.s(z),
+            Constraint::Ceiling(i) => -dot(i) - self.s(z),
+            _ => self.value(r, z, &[]),
+        }
+    }
+
     /// Gᵣ as a dense vector of length [`Rows::nv`].
     pub fn dense(&self, r: usize) -> Vec<f64> {
         let mut g = vec![0.0; self.nv()];
@@ -158,9 +168,14 @@ impl<'a> Rows<'a> {
         }
     }
 
-    /// A natural size for row r's value at z: what a tolerance on it is relative to.
-    pub fn scale(&self, r: usize, z: &[f64]) -> f64 {
-        let zmax = z.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+    /// A natural size for row r's value at a point whose largest entry is `zmax` (see
+    /// [`largest`]): what a tolerance on it is relative to.
+    pub fn scale(&self, r: usize, zmax: f64) -> f64 {
         1.0 + self.rhs[r].abs() + self.norm[r] * zmax
     }
+}
+
+/// The largest magnitude in z.
+pub(crate) fn largest(z: &[f64]) -> f64 {
+    z.iter().fold(0.0f64, |a, v| a.max(v.abs()))
 }

@@ -14,7 +14,7 @@
 
 use nalgebra::DMatrix;
 
-use super::rows::{Constraint, Rows};
+use super::rows::{Constraint, Rows, largest};
 use super::{Goal, Infeasible, MARGIN_TIME_PRICE, Multipliers, Refusal, Task};
 use crate::problem::Rates;
 
@@ -29,10 +29,14 @@ pub(super) struct Lp {
     pub margin: Option<f64>,
     pub multipliers: Multipliers,
     pub pivots: usize,
+    /// The final basis, by name.
+    pub basis: Vec<Constraint>,
 }
 
-/// Solves a linear goal.
-pub(super) fn solve(rates: &Rates, task: &Task) -> Result<Lp, Refusal> {
+/// Solves a linear goal, from the basis `hint` names when it is still a dual-feasible vertex of
+/// this task (the cost vector is the same for every task of a goal, so a basis stays dual
+/// feasible when only the bands, limits or budget change); otherwise from the start above.
+pub(super) fn solve(rates: &Rates, task: &Task, hint: &[Constraint]) -> Result<Lp, Refusal> {
     let a = rates.matrix();
     let (m, n) = a.shape();
     let margin_cap = match task.goal {
@@ -54,7 +58,10 @@ pub(super) fn solve(rates: &Rates, task: &Task) -> Result<Lp, Refusal> {
         cost[n] = -1.0;
         basis.push(rows.list.len() - 1); // the margin cap is the last row
     }
-    let mut state = State::start(&rows, &cost, basis)?;
+    let mut state = match warm(&rows, &cost, hint) {
+        Some(s) => s,
+        None => State::start(&rows, &cost, basis)?,
+    };
     let cap = 20 * (nv + m) + 1000;
     let mut stall = 0usize;
     let mut best_dual = f64::NEG_INFINITY;
@@ -135,6 +142,24 @@ pub(super) fn solve(rates: &Rates, task: &Task) -> Result<Lp, Refusal> {
         }
     }
     Err(Refusal::IterationLimit(cap))
+}
+
+/// The state at the basis `hint` names, if every constraint of it is a row of this task, the rows
+/// are independent and their multipliers are non-negative.
+fn warm(rows: &Rows, cost: &[f64], hint: &[Constraint]) -> Option<State> {
+    if hint.len() != rows.nv() {
+        return None;
+    }
+    let index: std::collections::HashMap<Constraint, usize> =
+        rows.list.iter().enumerate().map(|(r, &c)| (c, r)).collect();
+    let basis: Option<Vec<usize>> = hint.iter().map(|c| index.get(c).copied()).collect();
+    let state = State::start(rows, cost, basis?).ok()?;
+    let ymax = state.y.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+    state
+        .y
+        .iter()
+        .all(|&y| y >= -1e-12 * ymax.max(f64::MIN_POSITIVE))
+        .then_some(state)
 }
 
 /// The working bound on the margin: above anything a bounded margin can reach, or a refusal when
@@ -245,10 +270,12 @@ impl State {
     /// The most violated row (relative to its scale), or with Bland's rule the first violated one.
     fn entering(&self, rows: &Rows, bland: bool) -> Option<usize> {
         let mut best: Option<(usize, f64)> = None;
-        let in_basis = |r: usize| self.basis.contains(&r);
+        let mut in_basis = vec![false; rows.list.len()];
+        self.basis.iter().for_each(|&r| in_basis[r] = true);
+        let zmax = largest(&self.z);
         for r in 0..rows.list.len() {
             let slack = rows.value(r, &self.z, &self.ax) - rows.rhs[r];
-            if slack >= -1e-10 * rows.scale(r, &self.z) || in_basis(r) {
+            if slack >= -1e-10 * rows.scale(r, zmax) || in_basis[r] {
                 continue;
             }
             if bland {
@@ -315,5 +342,6 @@ fn finish(rows: &Rows, task: &Task, state: State, pivots: usize) -> Result<Lp, R
         margin,
         multipliers,
         pivots,
+        basis: state.basis.iter().map(|&r| rows.list[r]).collect(),
     })
 }
