@@ -34,6 +34,14 @@ pub struct SolveArgs {
     /// Also hold the hard limits with the food placed one cell off in each direction.
     #[arg(long)]
     pub placement: bool,
+    /// Another oven of the same model (its map library, CSV or JSON): the schedule is also
+    /// evaluated on it, and the worst outcome per food item reported. Repeatable.
+    #[arg(long = "other-oven", value_name = "LIBRARY")]
+    pub other_ovens: Vec<PathBuf>,
+    /// Solve so the hard limits hold on every --other-oven as well as on the plan's own
+    /// (constrained objectives).
+    #[arg(long, requires = "other_ovens")]
+    pub hold_on_all: bool,
 }
 
 /// Arguments of `traycast simulate`.
@@ -55,18 +63,20 @@ pub struct SimulateArgs {
     pub format: Format,
 }
 
-/// Reads a plan (and its library) and evaluates it.
+/// Reads a plan (and its library) and evaluates it; with `hold_on`, the hard limits also hold on
+/// those ovens' maps.
 pub fn evaluate_file(
     plan_path: &Path,
     library: Option<&Path>,
     refine: bool,
     planning: Option<(Option<&str>, bool)>,
+    hold_on: Vec<traycast_plan::library::MapLibrary>,
 ) -> Result<(Plan, Evaluation), CliError> {
     let mut plan = load_plan(plan_path)?;
     if let Some((objective, placement)) = planning {
         if let Some(name) = objective {
             plan.planning.objective =
-                Objective::parse(name, "--objective").map_err(|e| CliError::input(e.message))?;
+                Objective::parse(name, "--objective").map_err(CliError::input)?;
         }
         plan.planning.placement |= placement;
         plan.validate()
@@ -74,7 +84,10 @@ pub fn evaluate_file(
     }
     let lib = library.map(load_library).transpose()?;
     let spinner = progress::spinner("evaluating the plan");
-    let eval = evaluate::evaluate(&plan, lib.as_ref(), Options { refine })
+    let mut ev = evaluate::Evaluator::with_library(lib);
+    ev.hold_on(hold_on);
+    let eval = ev
+        .evaluate(&plan, Options { refine })
         .map_err(|e| CliError::at(plan_path, 0, 0, e))?;
     spinner.finish_and_clear();
     Ok((plan, eval))
@@ -82,15 +95,41 @@ pub fn evaluate_file(
 
 /// `traycast solve PLAN [--library FILE] [--format text|json] [--refine]`.
 pub fn solve(args: &SolveArgs) -> Result<(), CliError> {
+    let others = args
+        .other_ovens
+        .iter()
+        .map(|f| load_library(f))
+        .collect::<Result<Vec<_>, _>>()?;
+    let hold = if args.hold_on_all {
+        others.clone()
+    } else {
+        Vec::new()
+    };
     let (p, e) = evaluate_file(
         &args.plan,
         args.library.as_deref(),
         args.refine,
         Some((args.objective.as_deref(), args.placement)),
+        hold,
     )?;
+    let across = (!others.is_empty())
+        .then(|| evaluate::across_ovens(&p, &e.dwell, &others))
+        .transpose()
+        .map_err(|err| CliError::input(format!("--other-oven: {err}")))?;
     match args.format {
-        Format::Json => print_json(&traycast_plan::summary::to_json(&p, &e)),
-        Format::Text => print!("{}", report(&p, &e)),
+        Format::Json => {
+            let mut v = traycast_plan::summary::to_json(&p, &e);
+            if let Some(a) = &across {
+                v["other_ovens"] = traycast_plan::summary::across_ovens_json(&p, a);
+            }
+            print_json(&v)
+        }
+        Format::Text => {
+            print!("{}", report(&p, &e));
+            if let Some(a) = &across {
+                print!("{}", ovens_report(&p, &e, a));
+            }
+        }
     }
     Ok(())
 }
@@ -268,9 +307,37 @@ fn report(plan: &Plan, e: &Evaluation) -> String {
     s
 }
 
+/// The schedule on the other ovens: each item's verdict and margin per oven, and the worst.
+fn ovens_report(plan: &Plan, e: &Evaluation, a: &evaluate::AcrossOvens) -> String {
+    let mut s = String::from(
+        "\nThe same schedule on other ovens (margin K at the judged point; the plan's own oven first):\n",
+    );
+    let _ = write!(s, "{:<28} {:>14}", "food item", "this oven");
+    for o in &a.ovens {
+        let _ = write!(s, " {:>14}", o.library.chars().take(14).collect::<String>());
+    }
+    let _ = writeln!(s, "  worst");
+    for (k, it) in plan.items.iter().enumerate() {
+        let cell = |v: &traycast_thermal::safety::Verdict| {
+            format!(
+                "{} {}",
+                if v.safe { "meets" } else { "fails" },
+                num(v.margin, 1)
+            )
+        };
+        let _ = write!(s, "{:<28} {:>14}", it.name, cell(&e.items[k].verdict));
+        for o in &a.ovens {
+            let _ = write!(s, " {:>14}", cell(&o.items[k].verdict));
+        }
+        let w = &a.ovens[a.worst[k]];
+        let _ = writeln!(s, "  {} ({})", cell(&w.items[k].verdict), w.library);
+    }
+    s
+}
+
 /// `traycast simulate PLAN --out CURVES.csv [--schedule OUT] [--format text|json]`.
 pub fn simulate(args: &SimulateArgs) -> Result<(), CliError> {
-    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), false, None)?;
+    let (p, e) = evaluate_file(&args.plan, args.library.as_deref(), false, None, Vec::new())?;
     let mut out = String::new();
     for c in e.cautions {
         let _ = writeln!(out, "# {c}");

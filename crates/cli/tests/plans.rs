@@ -271,3 +271,55 @@ fn batch_evaluates_every_plan_and_reports_failures_in_line() {
         "the cautions travel with the summary"
     );
 }
+
+/// `solve --objective` plans for another objective; the JSON carries the planning settings, the
+/// simulation loop and the uniformity figures; `--other-oven` adds the same schedule on another
+/// oven's library; a bad objective or placement with the band fit exits 2 naming the option.
+#[test]
+fn solve_plans_for_an_objective_and_other_ovens() {
+    let dir = scratch("objectives");
+    let plan = dir.join("plan.json");
+    let p = plan.to_str().unwrap();
+    assert_eq!(traycast(&["demo", "hot-lunch", "--out", p]).0, 0);
+    let (code, out, err) = traycast(&[
+        "solve",
+        p,
+        "--objective",
+        "safe-minimum",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["planning"]["objective"], "safe-minimum");
+    assert!(v["loop"]["passes"].as_u64().unwrap() >= 2, "{}", v["loop"]);
+    assert!(v["items"][0]["uniformity"]["unsteered_linear"]["cv"].is_number());
+    assert!(
+        v["items"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .all(|i| i["safe"] == true),
+        "{}",
+        v["items"]
+    );
+
+    let lib = dir.join("unit.json");
+    let l = lib.to_str().unwrap();
+    assert_eq!(traycast(&["library", "export", p, "--out", l]).0, 0);
+    let (code, out, err) = traycast(&["solve", p, "--other-oven", l, "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["other_ovens"]["ovens"].as_array().unwrap().len(), 1);
+    assert_eq!(v["other_ovens"]["worst"].as_array().unwrap().len(), 3);
+
+    let (code, _, err) = traycast(&["solve", p, "--objective", "fastest"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("--objective") && err.contains("safe-minimum"),
+        "{err}"
+    );
+    let (code, _, err) = traycast(&["solve", p, "--placement"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("placement"), "{err}");
+}

@@ -62,3 +62,25 @@ pub fn to_json(plan: &Plan, e: &Evaluation) -> serde_json::Value {
         "cautions": e.cautions,
     })
 }
+
+/// A schedule on other ovens ([`crate::evaluate::across_ovens`]) as JSON: per oven, each item's
+/// verdict and margin; per item, the oven where it does worst.
+pub fn across_ovens_json(plan: &Plan, a: &crate::evaluate::AcrossOvens) -> serde_json::Value {
+    let finite = |v: f64| if v.is_finite() { Some(v) } else { None };
+    serde_json::json!({
+        "ovens": a.ovens.iter().map(|o| serde_json::json!({
+            "library": o.library,
+            "items": plan.items.iter().zip(&o.items).map(|(i, r)| serde_json::json!({
+                "name": i.name, "safe": r.verdict.safe, "margin_k": finite(r.verdict.margin),
+                "log_reduction": r.verdict.kill.and_then(|k| finite(k.achieved)),
+            })).collect::<Vec<_>>(),
+        })).collect::<Vec<_>>(),
+        "worst": a.worst.iter().enumerate().map(|(k, &w)| {
+            let v = &a.ovens[w].items[k].verdict;
+            serde_json::json!({
+                "name": plan.items[k].name, "library": a.ovens[w].library,
+                "safe": v.safe, "margin_k": finite(v.margin),
+            })
+        }).collect::<Vec<_>>(),
+    })
+}

@@ -148,3 +148,66 @@ fn a_chilled_item_too_warm_to_start_is_named() {
     assert_eq!(e.place.to_string(), "items[3].start_c", "{e}");
     assert!(e.message.contains("Vanilla pudding"), "{e}");
 }
+
+/// The hot-lunch tray's maps as a library named `name`, every rate scaled by `scale`: an invented
+/// unit of the same oven model (illustrative, not a measurement).
+fn unit(name: &str, scale: f64) -> traycast_plan::library::MapLibrary {
+    use traycast_plan::library::{MapLibrary, RateBasis, RecordedLoad};
+    let plan = demos::demo("hot-lunch-safe").unwrap();
+    let maps = evaluate::Evaluator::new().maps(&plan).unwrap().clone();
+    MapLibrary {
+        name: name.into(),
+        width: plan.tray.width,
+        height: plan.tray.height,
+        cell_mm: plan.tray.cell_mm,
+        configs: maps.configs,
+        basis: RateBasis::AsLoaded,
+        loads: vec![RecordedLoad {
+            name: plan.name.clone(),
+            layout: plan.loss_layout(),
+            rates: maps.loaded.iter().map(|r| r * scale).collect(),
+            uncertainty: None,
+        }],
+    }
+}
+
+/// One schedule on two units of an oven model: planned on unit A alone it falls short on a unit
+/// a quarter weaker; held on both, its worst margin over the items on the weak unit rises, and
+/// the schedule takes longer. Verdicts are the FDA Food Code / FSIS limits held in the thermal
+/// crate; the units are invented.
+#[test]
+fn a_schedule_can_be_held_on_several_ovens() {
+    let (a, b) = (
+        unit("unit A (illustrative)", 1.0),
+        unit("unit B (illustrative)", 0.75),
+    );
+    let plan = evaluate::on_oven(&demos::demo("hot-lunch-safe").unwrap(), &a);
+    let mut ev = evaluate::Evaluator::with_library(Some(a.clone()));
+    let alone = ev.evaluate(&plan, Options::default()).unwrap();
+    let worst_margin = |e: &evaluate::Evaluation| -> f64 {
+        let on_b = evaluate::across_ovens(&plan, &e.dwell, std::slice::from_ref(&b)).unwrap();
+        on_b.ovens[0]
+            .items
+            .iter()
+            .map(|it| it.verdict.margin)
+            .fold(f64::INFINITY, f64::min)
+    };
+    let before = worst_margin(&alone);
+    assert!(
+        before < 0.0,
+        "planned on A alone, something fails on B ({before} K)"
+    );
+    ev.hold_on(vec![b.clone()]);
+    let held = ev.evaluate(&plan, Options::default()).unwrap();
+    let after = worst_margin(&held);
+    assert!(after > before + 5.0, "held on both: {before} → {after} K");
+    assert!(held.total_s > alone.total_s);
+    // The report says which oven is worst for each item.
+    let both = evaluate::across_ovens(&plan, &held.dwell, &[a, b]).unwrap();
+    assert_eq!(both.worst.len(), plan.items.len());
+    for (k, &w) in both.worst.iter().enumerate() {
+        for o in &both.ovens {
+            assert!(both.ovens[w].items[k].verdict.margin <= o.items[k].verdict.margin);
+        }
+    }
+}

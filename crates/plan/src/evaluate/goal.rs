@@ -125,10 +125,12 @@ fn relax(miss: f64) -> f64 {
 /// Room above a safety limit that the loop leaves alone, K.
 pub const SPARE_K: f64 = 2.0;
 
-/// One row of the problem: the cell it constrains and the cell whose maps it reads.
+/// One row of the problem: the cell it constrains and the cell (and oven) whose maps it reads.
 struct Row {
     cell: usize,
     from: usize,
+    /// 0: the plan's own maps; k: the k-th other oven's.
+    oven: usize,
     /// The row carries the cell's soft band (the planned position of a zoned cell).
     soft: bool,
 }
@@ -138,6 +140,7 @@ pub(super) fn solve(
     plan: &Plan,
     prep: &Prepared,
     maps: &PlanMaps,
+    others: &[PlanMaps],
     gains: Option<&[f64]>,
     hard: Option<&Hard>,
     warm: &mut Option<Planned>,
@@ -176,6 +179,7 @@ pub(super) fn solve(
         .map(|&i| Row {
             cell: i,
             from: i,
+            oven: 0,
             soft: true,
         })
         .collect();
@@ -185,6 +189,7 @@ pub(super) fn solve(
             (f.is_finite() || c.is_finite()).then_some(Row {
                 cell: i,
                 from: i,
+                oven: 0,
                 soft: false,
             })
         }));
@@ -203,6 +208,28 @@ pub(super) fn solve(
                     rows.push(Row {
                         cell: i,
                         from: (r * w + col) as usize,
+                        oven: 0,
+                        soft: false,
+                    });
+                }
+            }
+        }
+    }
+    // Every hard row again on each other oven's maps (planned position).
+    if objective.is_constrained() && !others.is_empty() {
+        let base: Vec<usize> = rows
+            .iter()
+            .filter(|r| r.from == r.cell)
+            .map(|r| r.cell)
+            .collect();
+        for k in 1..=others.len() {
+            for &i in &base {
+                let (f, c) = limits(i);
+                if f.is_finite() || c.is_finite() {
+                    rows.push(Row {
+                        cell: i,
+                        from: i,
+                        oven: k,
                         soft: false,
                     });
                 }
@@ -214,7 +241,21 @@ pub(super) fn solve(
     let mut data = Vec::with_capacity(m * configs);
     for row in &rows {
         let g = gain(row.cell);
-        data.extend((0..configs).map(|c| maps.loaded[c * n + row.from] * g));
+        let source = if row.oven == 0 {
+            maps
+        } else {
+            &others[row.oven - 1]
+        };
+        if source.configs != configs {
+            return Err(PlanError::new(
+                "maps.library",
+                format!(
+                    "another oven's library has {} configurations, this plan's oven {configs}: they are not the same model",
+                    source.configs
+                ),
+            ));
+        }
+        data.extend((0..configs).map(|c| source.loaded[c * n + row.from] * g));
     }
     let rates = Rates::from_row_major(m, configs, &data)?;
     let soft = |f: &dyn Fn(usize) -> f64, none: f64| -> Vec<f64> {
@@ -319,7 +360,12 @@ fn refused(plan: &Plan, rows: &[Row], task: &Task, e: Refusal) -> PlanError {
         } else {
             ""
         };
-        format!("{what} at row {}, column {}{shifted}", i / w, i % w)
+        let oven = if rows[row].oven > 0 {
+            format!(" on other oven {}", rows[row].oven)
+        } else {
+            String::new()
+        };
+        format!("{what} at row {}, column {}{shifted}{oven}", i / w, i % w)
     };
     let describe = |c: Constraint| -> String {
         match c {

@@ -8,6 +8,7 @@
 //! - `verdicts`: per-cell bounds from the maps' errors and each item's verdict;
 //! - `diagnosis`: each zone's outcome and why it misses;
 //! - `baseline`: the unsteered comparison;
+//! - `ovens`: one schedule on several ovens (unit-to-unit variation);
 //! - `uniformity`: how evenly each item heats, steered and unsteered;
 //! - `goal`: the constrained objectives' rows, hard limits and placement scenarios;
 //! - `refine`: the simulation in the loop (solve → simulate → correct → re-solve);
@@ -19,6 +20,7 @@ mod course;
 mod diagnosis;
 mod goal;
 mod maps;
+mod ovens;
 mod prepared;
 mod problem;
 mod refine;
@@ -33,6 +35,7 @@ pub use course::time_course;
 pub use diagnosis::Diagnosis;
 pub use goal::Hard;
 pub use maps::{PlanMaps, Provenance, maps_for, materials};
+pub use ovens::{AcrossOvens, OvenOutcome, across_ovens, on_oven};
 pub use problem::linear_prediction;
 pub use refine::{MAX_PASSES, TOLERANCE_K};
 pub use report::{
@@ -69,6 +72,10 @@ pub struct Evaluator {
     solver: Option<(Vec<usize>, DwellSolver)>,
     /// The last constrained answer: the next constrained solve starts from it.
     planned: Option<traycast_solver::Planned>,
+    /// Other ovens the hard limits must hold on ([`Evaluator::hold_on`]), and their maps for the
+    /// plan whose maps are cached.
+    others: Vec<MapLibrary>,
+    other_maps: Vec<PlanMaps>,
 }
 
 impl Evaluator {
@@ -112,6 +119,7 @@ impl Evaluator {
             self.mats = materials(plan)?;
             let hash = self.library.as_ref().map(|_| self.library_hash);
             self.maps = Some(maps::maps_with(plan, self.library.as_ref(), hash)?);
+            self.refresh_other_maps(plan)?;
             self.maps_key = Some(key);
         }
         Ok(self.maps.as_ref().expect("just set"))

@@ -84,7 +84,15 @@ impl Evaluator {
         let maps = self.maps.as_ref().expect("maps computed first");
         if plan.planning.objective.is_constrained() || prep.problem.cap.iter().any(Option::is_some)
         {
-            return goal::solve(plan, prep, maps, gains, hard, &mut self.planned);
+            return goal::solve(
+                plan,
+                prep,
+                maps,
+                &self.other_maps,
+                gains,
+                hard,
+                &mut self.planned,
+            );
         }
         let n = maps.cells;
         let rows = &prep.rows;

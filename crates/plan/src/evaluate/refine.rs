@@ -4,7 +4,8 @@
 //! Each pass scales every food cell's rates by the gain the simulation showed (simulated rise of
 //! its coldest point ÷ linear rise at the end of heating) and, for the safe minimum, moves each
 //! cell's hard floor (ceiling) by how far its simulated lower (upper) bound after standing missed
-//! the safety limit ([`Hard::correct`]). It stops when no food cell's simulated temperature after
+//! the safety limit ([`Hard::correct`]) — on the worst of the plan's oven and the ovens the limits
+//! must also hold on ([`Evaluator::hold_on`]). It stops when no food cell's simulated temperature after
 //! standing moved by more than [`TOLERANCE_K`], or after [`MAX_PASSES`] solves. The plan kept is
 //! the best seen, never a worse one: for the safe minimum, fewest items failing, then the smallest
 //! safety gap, then the band fit; for the other objectives, the band fit, then the shorter time.
@@ -43,7 +44,10 @@ impl Evaluator {
         let initial = hard.clone();
         let mut hard = hard;
         let rms_before = band_rms(eval);
-        let mut best = score(eval, safe);
+        // The plan's outcome on the other ovens its limits must hold on, beside its own.
+        let mut current_others = self.on_other_ovens(plan, &eval.dwell)?;
+        let mut best = score(eval, &current_others, safe);
+        let mut best_gap = worst_gap(eval, &current_others);
         let mut kept_later = false;
         let mut current = eval.clone();
         let mut gains = vec![1.0; n];
@@ -65,7 +69,15 @@ impl Evaluator {
                 }
             }
             if let (Some(h), Some(first)) = (hard.as_mut(), initial.as_ref()) {
-                let (lower, upper) = judged_bounds(&current);
+                let (mut lower, mut upper) = judged_bounds(&current);
+                // Held on other ovens too: each cell answers for the worst of them.
+                for other in &current_others {
+                    let (lo, hi) = judged_bounds(other);
+                    for i in 0..n {
+                        lower[i] = lower[i].min(lo[i]);
+                        upper[i] = upper[i].max(hi[i]);
+                    }
+                }
                 let short_kill: Vec<bool> = current
                     .items
                     .iter()
@@ -85,15 +97,22 @@ impl Evaluator {
                 }
             };
             let next = self.finish(plan, prep, &sol, Some(&gains))?;
+            let next_others = self.on_other_ovens(plan, &next.dwell)?;
             passes += 1;
-            change = outcome_change(&current, &next);
-            let s = score(&next, safe);
+            change = current_others
+                .iter()
+                .zip(&next_others)
+                .map(|(a, b)| outcome_change(a, b))
+                .fold(outcome_change(&current, &next), f64::max);
+            let s = score(&next, &next_others, safe);
             if better(&s, &best) {
                 best = s;
+                best_gap = worst_gap(&next, &next_others);
                 *eval = next.clone();
                 kept_later = true;
             }
             current = next;
+            current_others = next_others;
             if change < TOLERANCE_K {
                 converged = true;
                 break;
@@ -107,10 +126,23 @@ impl Evaluator {
             change_k: change,
             converged,
             tolerance_k: TOLERANCE_K,
-            safety_gap_k: safety_gap(eval),
+            safety_gap_k: best_gap,
             stopped,
         });
         Ok(())
+    }
+}
+
+impl Evaluator {
+    /// `dwell` on each oven of [`Evaluator::hold_on`] (none when there are none).
+    fn on_other_ovens(&self, plan: &Plan, dwell: &[f64]) -> Result<Vec<Evaluation>, PlanError> {
+        self.others
+            .iter()
+            .map(|lib| {
+                Evaluator::with_library(Some(lib.clone()))
+                    .evaluate_dwell(&super::on_oven(plan, lib), dwell)
+            })
+            .collect()
     }
 }
 
@@ -161,11 +193,24 @@ fn safety_gap(e: &Evaluation) -> f64 {
         .fold(0.0, |a, v| if v.is_nan() { f64::NAN } else { a.max(v) })
 }
 
-/// Lower is better, compared in order.
-fn score(e: &Evaluation, safe: bool) -> [f64; 4] {
+/// The largest safety gap on the plan's oven and the others it must hold on.
+fn worst_gap(e: &Evaluation, others: &[Evaluation]) -> f64 {
+    others.iter().map(safety_gap).fold(
+        safety_gap(e),
+        |a, v| if v.is_nan() { f64::NAN } else { a.max(v) },
+    )
+}
+
+/// Lower is better, compared in order. For the safe minimum an item fails if it fails on any of
+/// the ovens its limits hold on.
+fn score(e: &Evaluation, others: &[Evaluation], safe: bool) -> [f64; 4] {
     if safe {
-        let failing = e.items.iter().filter(|it| !it.verdict.safe).count() as f64;
-        let gap = safety_gap(e);
+        let failing = (0..e.items.len())
+            .filter(|&k| {
+                !e.items[k].verdict.safe || others.iter().any(|o| !o.items[k].verdict.safe)
+            })
+            .count() as f64;
+        let gap = worst_gap(e, others);
         [
             failing,
             if gap.is_nan() { f64::INFINITY } else { gap },
