@@ -38,6 +38,10 @@ pub struct SolveArgs {
     /// evaluated on it, and the worst outcome per food item reported. Repeatable.
     #[arg(long = "other-oven", value_name = "LIBRARY")]
     pub other_ovens: Vec<PathBuf>,
+    /// Also simulate the schedule with the food placed one cell off in each direction and report
+    /// each item's safety margin over these scenarios (least, median, largest).
+    #[arg(long)]
+    pub scenarios: bool,
     /// Solve so the hard limits hold on every --other-oven as well as on the plan's own
     /// (constrained objectives).
     #[arg(long, requires = "other_ovens")]
@@ -112,6 +116,12 @@ pub fn solve(args: &SolveArgs) -> Result<(), CliError> {
         Some((args.objective.as_deref(), args.placement)),
         hold,
     )?;
+    let lib = args.library.as_deref().map(load_library).transpose()?;
+    let spread = args
+        .scenarios
+        .then(|| traycast_plan::robustness::safety_margins(&p, lib.as_ref(), &e.dwell))
+        .transpose()
+        .map_err(|err| CliError::input(format!("--scenarios: {err}")))?;
     let across = (!others.is_empty())
         .then(|| evaluate::across_ovens(&p, &e.dwell, &others))
         .transpose()
@@ -122,12 +132,30 @@ pub fn solve(args: &SolveArgs) -> Result<(), CliError> {
             if let Some(a) = &across {
                 v["other_ovens"] = traycast_plan::summary::across_ovens_json(&p, a);
             }
+            if let Some(m) = &spread {
+                v["scenarios"] = traycast_plan::summary::scenarios_json(&p, m);
+            }
             print_json(&v)
         }
         Format::Text => {
             print!("{}", report(&p, &e));
             if let Some(a) = &across {
                 print!("{}", ovens_report(&p, &e, a));
+            }
+            if let Some(m) = &spread {
+                println!(
+                    "\nSafety margin over placement (as planned and one cell off each way; judged as above, K):"
+                );
+                for (k, it) in p.items.iter().enumerate() {
+                    let (lo, mid, hi, at) = m.spread(k);
+                    println!(
+                        "  {:<28} least {} ({at}), median {}, largest {}",
+                        it.name,
+                        num(lo, 1),
+                        num(mid, 1),
+                        num(hi, 1)
+                    );
+                }
             }
         }
     }

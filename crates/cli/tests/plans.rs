@@ -307,11 +307,22 @@ fn solve_plans_for_an_objective_and_other_ovens() {
     let lib = dir.join("unit.json");
     let l = lib.to_str().unwrap();
     assert_eq!(traycast(&["library", "export", p, "--out", l]).0, 0);
-    let (code, out, err) = traycast(&["solve", p, "--other-oven", l, "--format", "json"]);
+    let (code, out, err) = traycast(&[
+        "solve",
+        p,
+        "--other-oven",
+        l,
+        "--scenarios",
+        "--format",
+        "json",
+    ]);
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     assert_eq!(v["other_ovens"]["ovens"].as_array().unwrap().len(), 1);
     assert_eq!(v["other_ovens"]["worst"].as_array().unwrap().len(), 3);
+    assert_eq!(v["scenarios"]["names"].as_array().unwrap().len(), 5);
+    let least = v["scenarios"]["items"][0]["least_k"].as_f64().unwrap();
+    assert!(least <= v["scenarios"]["items"][0]["median_k"].as_f64().unwrap());
 
     let (code, _, err) = traycast(&["solve", p, "--objective", "fastest"]);
     assert_eq!(code, 2);

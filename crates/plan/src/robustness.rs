@@ -1,5 +1,8 @@
 //! How far a plan survives food placed a little off: the schedule is kept, the foods (and their
-//! targets) move by one cell, the maps follow the new layout, and the band error is recomputed.
+//! targets) move by one cell, the maps follow the new layout, and the band error
+//! ([`robustness`], linear) or each item's safety margin ([`safety_margins`], simulated, judged
+//! as the plan's own verdicts are — on the bounds, which already allow for oven power, start
+//! temperature and the maps' errors) is recomputed.
 
 use crate::error::PlanError;
 use crate::evaluate::{Evaluator, linear_prediction};
@@ -76,5 +79,75 @@ pub fn robustness(
         worst_rms: *sorted.last().expect("four shifts"),
         typical_rms: 0.5 * (sorted[1] + sorted[2]),
         shifted: shifts,
+    })
+}
+
+/// Each item's safety margin over the placement scenarios: as planned and one cell off in each
+/// direction.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SafetyMargins {
+    /// Scenario names, "as planned" first.
+    pub scenarios: Vec<String>,
+    /// Margin per scenario and item, K (the verdict's margin: NaN where it cannot be judged).
+    pub margins: Vec<Vec<f64>>,
+}
+
+impl SafetyMargins {
+    /// Item `k`'s least, median and largest margin over the scenarios, and the scenario of the
+    /// least (NaN margins count as least).
+    pub fn spread(&self, k: usize) -> (f64, f64, f64, &str) {
+        let mut v: Vec<(f64, usize)> = self
+            .margins
+            .iter()
+            .enumerate()
+            .map(|(s, m)| {
+                (
+                    if m[k].is_nan() {
+                        f64::NEG_INFINITY
+                    } else {
+                        m[k]
+                    },
+                    s,
+                )
+            })
+            .collect();
+        v.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let median = if v.len() % 2 == 1 {
+            v[v.len() / 2].0
+        } else {
+            0.5 * (v[v.len() / 2 - 1].0 + v[v.len() / 2].0)
+        };
+        (v[0].0, median, v[v.len() - 1].0, &self.scenarios[v[0].1])
+    }
+}
+
+/// Simulates `dwell` with the foods where planned and one cell off each way, and judges every
+/// item in each.
+pub fn safety_margins(
+    plan: &Plan,
+    library: Option<&MapLibrary>,
+    dwell: &[f64],
+) -> Result<SafetyMargins, PlanError> {
+    let cases = [
+        ("as planned", 0, 0),
+        ("one cell right", 1, 0),
+        ("one cell left", -1, 0),
+        ("one cell down", 0, 1),
+        ("one cell up", 0, -1),
+    ];
+    let mut ev = Evaluator::with_library(library.cloned());
+    let mut margins = Vec::new();
+    for (_, dx, dy) in cases {
+        let p = if (dx, dy) == (0, 0) {
+            plan.clone()
+        } else {
+            shifted(plan, dx, dy)
+        };
+        let e = ev.evaluate_dwell(&p, dwell)?;
+        margins.push(e.items.iter().map(|it| it.verdict.margin).collect());
+    }
+    Ok(SafetyMargins {
+        scenarios: cases.iter().map(|c| c.0.to_string()).collect(),
+        margins,
     })
 }

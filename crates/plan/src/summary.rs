@@ -84,3 +84,19 @@ pub fn across_ovens_json(plan: &Plan, a: &crate::evaluate::AcrossOvens) -> serde
         }).collect::<Vec<_>>(),
     })
 }
+
+/// Each item's safety margin over the placement scenarios ([`crate::robustness::safety_margins`]).
+pub fn scenarios_json(plan: &Plan, m: &crate::robustness::SafetyMargins) -> serde_json::Value {
+    let finite = |v: f64| if v.is_finite() { Some(v) } else { None };
+    serde_json::json!({
+        "names": m.scenarios,
+        "items": plan.items.iter().enumerate().map(|(k, i)| {
+            let (lo, mid, hi, at) = m.spread(k);
+            serde_json::json!({
+                "name": i.name,
+                "margins_k": m.margins.iter().map(|s| finite(s[k])).collect::<Vec<_>>(),
+                "least_k": finite(lo), "median_k": finite(mid), "largest_k": finite(hi), "least_in": at,
+            })
+        }).collect::<Vec<_>>(),
+    })
+}
