@@ -51,6 +51,7 @@ pub mod robustness;
 pub mod runs;
 pub mod stats;
 pub mod summary;
+mod transfer;
 pub mod wire;
 
 pub use error::{Place, PlanError};

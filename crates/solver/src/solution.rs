@@ -1,7 +1,7 @@
 //! What a solve returns: dwell seconds, achieved values, status and diagnostics.
 
 /// How a solve ended.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Status {
     /// The exact optimum; the budget (if any) is slack.
     Optimal,

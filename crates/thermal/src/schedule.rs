@@ -3,7 +3,7 @@
 use crate::error::ThermalError;
 
 /// One step: stay in `config` for `seconds`.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Step {
     /// Configuration index.
     pub config: usize,
@@ -12,7 +12,7 @@ pub struct Step {
 }
 
 /// An ordered list of steps.
-#[derive(Clone, Debug, Default, PartialEq)]
+#[derive(Clone, Debug, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Schedule {
     /// The steps, in order.
     pub steps: Vec<Step>,

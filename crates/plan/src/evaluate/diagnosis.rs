@@ -9,7 +9,7 @@ use crate::model::Plan;
 use traycast_solver::Status;
 
 /// Why a zone misses its band.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum Diagnosis {
     /// The oven's physics: no mixture of configurations separates this zone from another.
     Physics(String),

@@ -28,7 +28,7 @@ pub struct PlanMaps {
 }
 
 /// Where a plan's maps come from.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum Provenance {
     /// The illustrative field model.
     Synthetic,

@@ -8,7 +8,7 @@ use traycast_thermal::schedule::Schedule;
 use traycast_thermal::simulate::TimeCourse;
 
 /// One zone's outcome.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ZoneSummary {
     /// Share of the zone's cells inside the band, linear prediction.
     pub coverage_linear: f64,
@@ -23,7 +23,7 @@ pub struct ZoneSummary {
 }
 
 /// One food item's outcome.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ItemSummary {
     /// Coldest point after standing (the coldest layer of any of its cells), °C.
     pub min: f64,
@@ -46,7 +46,7 @@ pub struct ItemSummary {
 }
 
 /// The point of an item a verdict was judged at.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct JudgedPoint {
     /// True for the warmest point (a cold-holding maximum), false for the coldest.
     pub warmest: bool,
@@ -79,7 +79,7 @@ impl JudgedPoint {
 
 /// Where an item's temperatures after standing lie given the maps' standard errors: each interval
 /// bounds the quantity when every cell is within its own 95 % interval.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Spread {
     /// Coldest point, °C (lower, upper).
     pub coldest: (f64, f64),
@@ -93,7 +93,7 @@ pub struct Spread {
 
 /// Per-cell bounds of the temperatures after standing, joint over each item at 95 %, °C (NaN for
 /// empty cells).
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct CellBounds {
     /// Lower bounds.
     pub lower: Vec<f64>,
@@ -102,7 +102,7 @@ pub struct CellBounds {
 }
 
 /// The same tray heated without steering.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Baseline {
     /// Heating time: until the coldest targeted cell reaches its band minimum (capped by the budget).
     pub seconds: f64,
@@ -115,7 +115,7 @@ pub struct Baseline {
 }
 
 /// What the simulation loop (solve → simulate → correct → re-solve) did.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Refinement {
     /// RMS band distance after standing of the first solve, K.
     pub rms_before: f64,
@@ -139,7 +139,7 @@ pub struct Refinement {
 }
 
 /// Everything a front end shows.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Evaluation {
     /// Seconds per configuration (rounded to the controller's quantum).
     pub dwell: Vec<f64>,
@@ -182,7 +182,12 @@ pub struct Evaluation {
     /// ±15 %, start ±2 K"); None without bounds.
     pub bounds_from: Option<String>,
     /// The usual cautions.
+    #[serde(skip, default = "all_cautions")]
     pub cautions: &'static [&'static str],
+}
+
+fn all_cautions() -> &'static [&'static str] {
+    &traycast_thermal::safety::CAUTIONS
 }
 
 /// The fast part of an evaluation (see [`Evaluator::quick`]).

@@ -12,7 +12,7 @@ use super::prepared::Prepared;
 use crate::model::Plan;
 
 /// One set of uniformity figures.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Uniformity {
     /// σ/(T̄ − T₀), dimensionless (NaN without cells or without a rise).
     pub cv: f64,
@@ -23,7 +23,7 @@ pub struct Uniformity {
 }
 
 /// An item's figures, steered and not.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ItemUniformity {
     /// The plan's schedule, linear prediction.
     pub steered_linear: Uniformity,

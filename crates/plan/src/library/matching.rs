@@ -5,7 +5,7 @@ use super::MapLibrary;
 use traycast_thermal::dielectric::LossClass;
 
 /// Where a plan stands relative to a library's recorded loads.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum Window {
     /// Score ≥ 0.90: the layout is close enough to replay the maps.
     Inside,

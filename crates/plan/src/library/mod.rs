@@ -35,7 +35,7 @@ use crate::error::PlanError;
 use traycast_thermal::dielectric::LossClass;
 
 /// One recorded load: its layout and one rate map per configuration.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct RecordedLoad {
     /// Name of the load.
     pub name: String,
@@ -48,7 +48,7 @@ pub struct RecordedLoad {
 }
 
 /// How well a recorded load's rates are known.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Uncertainty {
     /// Standard error of each rate, config-major, K/s (0 for empty cells).
     pub se: Vec<f64>,
@@ -57,7 +57,7 @@ pub struct Uncertainty {
 }
 
 /// The state of the food the rates describe.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 pub enum RateBasis {
     /// The state the food was in when recorded (frozen food: frozen rates).
     #[default]
@@ -84,7 +84,7 @@ impl RateBasis {
 }
 
 /// A library of recorded loads for one oven and tray grid.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct MapLibrary {
     /// Library name.
     pub name: String,

@@ -81,7 +81,7 @@ pub fn penetration_depth(constant: f64, loss: f64) -> f64 {
 
 /// A coarse tag for how a food absorbs: what recorded loads' layouts are matched by. The physics
 /// itself comes from the composition ([`food`]).
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
 pub enum LossClass {
     /// Meat, poultry, fish: high loss thawed, brine-dominated when frozen.
     Meat,

@@ -183,7 +183,7 @@ pub enum SafetyCategory {
 }
 
 /// One requirement a food item's temperatures are judged against.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Requirement {
     /// Where it comes from (for display).
     pub source: String,
@@ -317,6 +317,27 @@ impl SafetyCategory {
     /// Parses [`SafetyCategory::as_str`].
     pub fn parse(s: &str) -> Option<Self> {
         Self::ALL.into_iter().find(|c| c.as_str() == s)
+    }
+}
+
+/// A kill target travels as the category it belongs to (its curve and source are static text): two
+/// copies of one build, such as the page and its evaluation worker, pass verdicts to each other.
+impl serde::Serialize for KillTarget {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let at = SafetyCategory::ALL
+            .iter()
+            .position(|c| c.kill_target().as_ref() == Some(self))
+            .ok_or_else(|| serde::ser::Error::custom("a kill target of no safety category"))?;
+        s.serialize_str(SafetyCategory::ALL[at].as_str())
+    }
+}
+
+impl<'de> serde::Deserialize<'de> for KillTarget {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        let name = String::deserialize(d)?;
+        SafetyCategory::parse(&name)
+            .and_then(SafetyCategory::kill_target)
+            .ok_or_else(|| serde::de::Error::custom(format!("'{name}' has no kill target")))
     }
 }
 

@@ -24,7 +24,7 @@ pub struct Handling {
 }
 
 /// The kill an item reached against what its category needs.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Kill {
     /// What the category needs.
     pub target: KillTarget,
@@ -40,7 +40,7 @@ impl Kill {
 }
 
 /// The coldest-point verdict for one food item.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Verdict {
     /// True when every requirement holds: its temperature, and its stand and cover.
     pub safe: bool,

@@ -215,7 +215,7 @@ pub struct Maps<'a> {
 
 /// Coldest point / mass-weighted mean / hottest point of one item (over every layer of every
 /// cell), per recorded frame.
-#[derive(Clone, Debug, Default, PartialEq)]
+#[derive(Clone, Debug, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct ItemCurve {
     /// Coldest point, °C.
     pub min: Vec<f64>,
@@ -226,7 +226,7 @@ pub struct ItemCurve {
 }
 
 /// The simulated prediction.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct TimeCourse {
     /// Recorded instants, s from the start.
     pub times: Vec<f64>,

@@ -1,0 +1,151 @@
+//! The tray board: the tray editor canvas (pointer, touch and keyboard painting), the readout of
+//! the cell under the pointer, and the three maps.
+
+use crate::draw;
+use crate::files::download_url;
+use crate::simview::SimViewPicker;
+use crate::state::{Workbench, workbench};
+use crate::views::TRAY_PX;
+use leptos::html;
+use leptos::prelude::*;
+use wasm_bindgen::JsCast;
+
+/// The cell under the pointer, wherever CSS, page zoom or the device's pixel ratio put the canvas:
+/// the pointer's place inside the canvas's content box, scaled to its drawing.
+fn cell_at(wb: Workbench, ev: &web_sys::PointerEvent) -> Option<usize> {
+    let canvas = wb.canvases.tray.get_untracked()?;
+    let rect = canvas.get_bounding_client_rect();
+    let shown = (canvas.client_width() as f64, canvas.client_height() as f64);
+    let drawn = (canvas.width() as f64, canvas.height() as f64);
+    let at = (
+        ev.client_x() as f64 - rect.left() - canvas.client_left() as f64,
+        ev.client_y() as f64 - rect.top() - canvas.client_top() as f64,
+    );
+    wb.plan.with_untracked(|p| {
+        crate::paint::cell_at_point(p, draw::cell_px(p, TRAY_PX), at, shown, drawn)
+    })
+}
+
+/// Arrow keys move the cell cursor; Space or Enter paints at it.
+fn on_tray_key(wb: Workbench, ev: web_sys::KeyboardEvent) {
+    let (w, h) = wb.plan.with_untracked(|p| (p.tray.width, p.tray.height));
+    let at = wb.cursor.get_untracked().filter(|&i| i < w * h);
+    let (r, c) = at.map_or((0, 0), |i| (i / w, i % w));
+    let moved = match ev.key().as_str() {
+        "ArrowLeft" => Some((r, c.saturating_sub(1))),
+        "ArrowRight" => Some((r, (c + 1).min(w - 1))),
+        "ArrowUp" => Some((r.saturating_sub(1), c)),
+        "ArrowDown" => Some(((r + 1).min(h - 1), c)),
+        _ => None,
+    };
+    if let Some((r, c)) = moved {
+        ev.prevent_default();
+        let i = if at.is_some() { r * w + c } else { 0 };
+        wb.cursor.set(Some(i));
+        wb.hover.set(Some(i));
+    } else if matches!(ev.key().as_str(), " " | "Enter") {
+        ev.prevent_default();
+        let i = at.unwrap_or(0);
+        wb.cursor.set(Some(i));
+        crate::compute::mark("tc-input");
+        wb.paint_cell(i);
+    }
+}
+
+/// The numbers of the cell under the pointer (the full evaluation's only when it is current).
+fn hover_text(wb: Workbench) -> String {
+    let idle = "Hover a cell for its numbers.".to_string();
+    let Some(i) = wb.hover.get() else { return idle };
+    let p = wb.plan.get();
+    if i >= p.tray.cells() {
+        // The tray changed size under the pointer.
+        return idle;
+    }
+    let u = wb.unit.get();
+    let (r, c) = (i / p.tray.width, i % p.tray.width);
+    let food = p.item_at(i).map_or("empty".to_string(), |k| p.items[k].name.clone());
+    let zone = p.zone_at(i).map_or("no target".to_string(), |z| p.zones[z].name.clone());
+    let place = format!("row {r}, col {c}: {food}, {zone}");
+    wb.with_current(|e| {
+        let depth = if e.course.coldest_depth[i].is_finite() {
+            format!(
+                " ({:.0} mm deep; column mean {})",
+                e.course.coldest_depth[i] * 1000.0,
+                u.fmt(e.course.mean_after_standing[i])
+            )
+        } else {
+            String::new()
+        };
+        let off = if e.error_simulated[i].is_finite() {
+            format!("{:+.1}", u.diff(e.error_simulated[i]))
+        } else {
+            "—".into()
+        };
+        format!(
+            "{place}; linear {}, simulated coldest point {}{depth}, off band {off}",
+            u.fmt(e.linear[i]),
+            u.fmt(e.course.after_standing[i]),
+        )
+    })
+    .unwrap_or(place)
+}
+
+/// The tray editor, its readout and the maps.
+#[component]
+pub fn Board() -> impl IntoView {
+    let wb = workbench();
+    let c = wb.canvases;
+    let on_down = move |ev: web_sys::PointerEvent| {
+        let Some(i) = cell_at(wb, &ev) else { return };
+        crate::compute::mark("tc-input");
+        if let Some(t) = ev.target().and_then(|t| t.dyn_into::<web_sys::Element>().ok()) {
+            let _ = t.set_pointer_capture(ev.pointer_id());
+        }
+        wb.begin_stroke(i);
+    };
+    let on_move = move |ev: web_sys::PointerEvent| {
+        let cell = cell_at(wb, &ev);
+        wb.hover.set(cell);
+        if let Some(i) = cell
+            && wb.stroke.get_value().is_some()
+        {
+            crate::compute::mark("tc-input");
+            wb.continue_stroke(i);
+        }
+    };
+    let on_up = move |ev: web_sys::PointerEvent| {
+        if wb.rect.get_untracked() {
+            crate::compute::mark("tc-input");
+        }
+        wb.end_stroke(cell_at(wb, &ev));
+    };
+    let png = move |r: NodeRef<html::Canvas>, name: &'static str| {
+        move |_| {
+            if let Some(canvas) = r.get()
+                && let Some(url) = draw::with_caution(&canvas)
+            {
+                download_url(name, &url);
+            }
+        }
+    };
+    let (unit, sim_view, sim_depth) = (wb.unit, wb.sim_view, wb.sim_depth);
+    view! {
+        <section class="board">
+            <h2>"Tray " <small>{move || wb.plan.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
+            <canvas id="tray" node_ref=c.tray tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
+                on:keydown=move |ev| on_tray_key(wb, ev) on:blur=move |_| wb.cursor.set(None)
+                on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>
+            <p class="hover" id="hover" aria-live="polite">{move || hover_text(wb)}</p>
+            <label class="check" title="Keep the linear and simulated maps on the scale they show now, to compare edits">
+                <input id="lock-scale" type="checkbox" prop:checked=move || wb.scale_lock.get().is_some()
+                    on:change=move |ev| wb.scale_lock.set(event_target_checked(&ev).then(|| wb.scale.get_untracked())) />
+                "Lock the temperature scale of the two temperature maps"
+            </label>
+            <div class="maps">
+                <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=c.linear></canvas><button class="small" on:click=png(c.linear, "linear.png")>"PNG"</button></figure>
+                <figure><figcaption>{move || format!("Simulated {} of each cell, after standing ({})", sim_view.get().caption(sim_depth.get()), unit.get().symbol())}</figcaption><SimViewPicker view=sim_view depth_mm=sim_depth /><canvas id="map-simulated" node_ref=c.simulated></canvas><button class="small" on:click=png(c.simulated, "simulated.png")>"PNG"</button></figure>
+                <figure><figcaption>"Off band (linear prediction): blue too cold, red too hot, white dot in band, hatched no target"</figcaption><canvas id="map-error" node_ref=c.off_band></canvas><button class="small" on:click=png(c.off_band, "error.png")>"PNG"</button></figure>
+            </div>
+        </section>
+    }
+}

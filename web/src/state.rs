@@ -1,0 +1,279 @@
+//! The workbench's one state, shared with every panel through context: the plan and its history,
+//! the map library, the results tagged with the revision of the plan they belong to, the editing
+//! choices, and the canvases the views draw on.
+
+use crate::draw::Scale;
+use crate::history::History;
+use crate::paint::{Tool, paint};
+use crate::simview::SimView;
+use crate::units::Unit;
+use leptos::html;
+use leptos::prelude::*;
+use traycast_plan::calibrate::QualityReport;
+use traycast_plan::evaluate::{Evaluation, Quick};
+use traycast_plan::library::MapLibrary;
+use traycast_plan::model::{MapSource, Plan};
+
+/// Steps back the history keeps.
+const HISTORY_STEPS: usize = 200;
+
+/// A full evaluation, or why there is none, with the revision it belongs to.
+pub type Tagged = (u64, Result<Evaluation, String>);
+
+/// The canvases, so the drawing effects and the panels that show them meet in one place.
+#[derive(Clone, Copy)]
+pub struct Canvases {
+    /// The tray editor.
+    pub tray: NodeRef<html::Canvas>,
+    /// The linear prediction.
+    pub linear: NodeRef<html::Canvas>,
+    /// The simulated map.
+    pub simulated: NodeRef<html::Canvas>,
+    /// The off-band map.
+    pub off_band: NodeRef<html::Canvas>,
+    /// The dwell bars.
+    pub bars: NodeRef<html::Canvas>,
+    /// The foods-over-time chart.
+    pub course: NodeRef<html::Canvas>,
+}
+
+/// Everything the panels share. Copy: every part is a signal or a handle.
+#[derive(Clone, Copy)]
+pub struct Workbench {
+    /// The plan being edited.
+    pub plan: RwSignal<Plan>,
+    history: StoredValue<History<Plan>>,
+    /// Moves on with every change of the plan or the library; results carry the one they are for.
+    pub rev: Memo<u64>,
+    /// An imported or calibrated library (None: the illustrative field model).
+    pub library: RwSignal<Option<MapLibrary>>,
+    /// Moves on whenever `library` is replaced, so nothing compares libraries by value.
+    pub library_rev: RwSignal<u64>,
+    /// The fast result (warm solve and linear prediction) of a revision.
+    pub quick: RwSignal<Option<(u64, Quick)>>,
+    /// The full evaluation of a revision (possibly an earlier one while the next is computed).
+    pub eval: RwSignal<Option<Tagged>>,
+    /// The last calibration's quality report and per-probe table (CSV).
+    pub quality: RwSignal<Option<(QualityReport, String)>>,
+    /// A message for the user, dismissable.
+    pub notice: RwSignal<Option<String>>,
+    /// °C or °F.
+    pub unit: RwSignal<Unit>,
+    /// What the brush paints.
+    pub tool: RwSignal<Tool>,
+    /// Brush size, cells.
+    pub brush: RwSignal<usize>,
+    /// Rectangle mode.
+    pub rect: RwSignal<bool>,
+    /// The cell under the pointer or the keyboard's cursor.
+    pub hover: RwSignal<Option<usize>>,
+    /// The keyboard's cell cursor on the tray.
+    pub cursor: RwSignal<Option<usize>>,
+    /// The rectangle being dragged (first and current cell).
+    pub rect_preview: RwSignal<Option<(usize, usize)>>,
+    /// Where the current stroke started.
+    pub stroke: StoredValue<Option<usize>>,
+    /// Heating-runs files are in °F.
+    pub runs_in_f: RwSignal<bool>,
+    /// Which point of each cell the simulated map shows, and the depth for a chosen depth, mm.
+    pub sim_view: RwSignal<SimView>,
+    /// The depth shown by [`SimView::Depth`], mm.
+    pub sim_depth: RwSignal<f64>,
+    /// The share link's length, characters.
+    pub link_len: RwSignal<usize>,
+    /// The temperature scale the linear and simulated maps share: the locked one, else one
+    /// spanning both maps of the current revision.
+    pub scale: Memo<Scale>,
+    /// A scale held for comparisons across edits.
+    pub scale_lock: RwSignal<Option<Scale>>,
+    /// The canvases.
+    pub canvases: Canvases,
+}
+
+impl Workbench {
+    /// The state for a plan opened at start-up, with a message for the user if any.
+    pub fn new(plan: Plan, notice: Option<String>) -> Self {
+        let plan = RwSignal::new(plan);
+        let library_rev = RwSignal::new(0u64);
+        let rev = Memo::new(move |prev: Option<&u64>| {
+            plan.track();
+            library_rev.track();
+            prev.map_or(1, |r| r + 1)
+        });
+        let quick = RwSignal::new(None::<(u64, Quick)>);
+        let eval = RwSignal::new(None::<Tagged>);
+        let (sim_view, sim_depth) = (RwSignal::new(SimView::Coldest), RwSignal::new(10.0));
+        let scale_lock = RwSignal::new(None);
+        let scale = Memo::new(move |_| {
+            if let Some(s) = scale_lock.get() {
+                return s;
+            }
+            let now = rev.get();
+            let (view, depth) = (sim_view.get(), sim_depth.get());
+            let linear = quick.with(|q| match q {
+                Some((r, q)) if *r == now => q.linear.clone(),
+                _ => Vec::new(),
+            });
+            let simulated = eval.with(|e| match e {
+                Some((r, Ok(e))) if *r == now => plan.with(|p| view.temps(&e.course, depth, &p.food)),
+                _ => Vec::new(),
+            });
+            Scale::spanning(&[&linear, &simulated])
+        });
+        Workbench {
+            plan,
+            history: StoredValue::new(History::new(HISTORY_STEPS)),
+            rev,
+            library: RwSignal::new(None),
+            library_rev,
+            quick,
+            eval,
+            quality: RwSignal::new(None),
+            notice: RwSignal::new(notice),
+            unit: RwSignal::new(Unit::Celsius),
+            tool: RwSignal::new(Tool::Food(0)),
+            brush: RwSignal::new(1),
+            rect: RwSignal::new(false),
+            hover: RwSignal::new(None),
+            cursor: RwSignal::new(None),
+            rect_preview: RwSignal::new(None),
+            stroke: StoredValue::new(None),
+            runs_in_f: RwSignal::new(false),
+            sim_view,
+            sim_depth,
+            link_len: RwSignal::new(0),
+            scale,
+            scale_lock,
+            canvases: Canvases {
+                tray: NodeRef::new(),
+                linear: NodeRef::new(),
+                simulated: NodeRef::new(),
+                off_band: NodeRef::new(),
+                bars: NodeRef::new(),
+                course: NodeRef::new(),
+            },
+        }
+    }
+
+    /// One undoable edit of the plan (nothing is recorded when it changes nothing).
+    pub fn edit(&self, change: impl FnOnce(&mut Plan)) {
+        let current = self.plan.get_untracked();
+        let mut next = None;
+        self.history
+            .update_value(|h| next = h.edit(&current, change));
+        if let Some(p) = next {
+            self.plan.set(p);
+        }
+    }
+
+    /// Back one edit.
+    pub fn undo(&self) {
+        let mut prev = None;
+        self.history
+            .update_value(|h| prev = h.undo(self.plan.get_untracked()));
+        if let Some(p) = prev {
+            self.plan.set(p);
+        }
+    }
+
+    /// Forward one undone edit.
+    pub fn redo(&self) {
+        let mut next = None;
+        self.history
+            .update_value(|h| next = h.redo(self.plan.get_untracked()));
+        if let Some(p) = next {
+            self.plan.set(p);
+        }
+    }
+
+    /// A stroke starts at `cell`: the plan before it is one undo step, however many cells it
+    /// paints; outside rectangle mode the brush paints there at once.
+    pub fn begin_stroke(&self, cell: usize) {
+        let before = self.plan.get_untracked();
+        self.history.update_value(|h| h.record(before));
+        self.stroke.set_value(Some(cell));
+        if !self.rect.get_untracked() {
+            self.paint_at(cell, cell, self.brush.get_untracked());
+        }
+    }
+
+    /// The stroke reaches `cell`: the brush paints there, or the rectangle follows it.
+    pub fn continue_stroke(&self, cell: usize) {
+        let Some(start) = self.stroke.get_value() else {
+            return;
+        };
+        if self.rect.get_untracked() {
+            if self.rect_preview.get_untracked() != Some((start, cell)) {
+                self.rect_preview.set(Some((start, cell)));
+            }
+        } else {
+            self.paint_at(cell, cell, self.brush.get_untracked());
+        }
+    }
+
+    /// The stroke ends (at `cell`, when over the tray): a rectangle is painted now; a stroke that
+    /// changed nothing leaves no undo step.
+    pub fn end_stroke(&self, cell: Option<usize>) {
+        if let (Some(start), Some(end), true) =
+            (self.stroke.get_value(), cell, self.rect.get_untracked())
+        {
+            self.paint_at(start, end, 1);
+        }
+        if self.stroke.get_value().is_some() {
+            self.plan
+                .with_untracked(|p| self.history.update_value(|h| h.settle(p)));
+        }
+        self.stroke.set_value(None);
+        self.rect_preview.set(None);
+    }
+
+    fn paint_at(&self, a: usize, b: usize, brush: usize) {
+        let tool = self.tool.get_untracked();
+        let mut p = self.plan.get_untracked();
+        if paint(&mut p, tool, a, b, brush) {
+            self.plan.set(p);
+        }
+    }
+
+    /// Paints at one cell as its own undoable edit (the keyboard's brush).
+    pub fn paint_cell(&self, cell: usize) {
+        let (tool, brush) = (self.tool.get_untracked(), self.brush.get_untracked());
+        self.edit(|p| {
+            paint(p, tool, cell, cell, brush);
+        });
+    }
+
+    /// Uses `library` from now on and points the plan at it, as one undoable edit.
+    pub fn use_library(&self, library: MapLibrary, also: impl FnOnce(&mut Plan)) {
+        let (name, hash) = (library.name.clone(), library.content_hash());
+        self.library.set(Some(library));
+        self.library_rev.update(|r| *r += 1);
+        self.edit(|p| {
+            p.maps = MapSource::Library {
+                name,
+                hash: Some(hash),
+            };
+            also(p);
+        });
+    }
+
+    /// Reads the full evaluation when it belongs to the plan as it is now (tracked).
+    pub fn with_current<R>(&self, f: impl FnOnce(&Evaluation) -> R) -> Option<R> {
+        let now = self.rev.get();
+        self.eval.with(|e| match e {
+            Some((r, Ok(e))) if *r == now => Some(f(e)),
+            _ => None,
+        })
+    }
+
+    /// Reads the latest full evaluation, which may describe an earlier revision while the next
+    /// is computed (tracked): what the outcome panels show until the new one arrives.
+    pub fn with_latest<R>(&self, f: impl FnOnce(Option<&Result<Evaluation, String>>) -> R) -> R {
+        self.eval.with(|e| f(e.as_ref().map(|(_, r)| r)))
+    }
+}
+
+/// The workbench state provided by [`crate::app::App`].
+pub fn workbench() -> Workbench {
+    expect_context::<Workbench>()
+}

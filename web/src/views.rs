@@ -1,0 +1,72 @@
+//! Drawing the canvases: the fast views (tray editor, linear and off-band maps, dwell bars) on
+//! every change, the slow ones (simulated map, foods over time) when a full evaluation of the
+//! current revision arrives. Each draws only results of the revision it is showing.
+
+use crate::compute::measure;
+use crate::draw::{self, Scale};
+use crate::state::Workbench;
+use leptos::prelude::*;
+
+/// Drawing width of the tray editor, px.
+pub const TRAY_PX: f64 = 560.0;
+/// Drawing width of each map, px.
+const MAP_PX: f64 = 300.0;
+
+/// Starts the drawing effects.
+pub fn draw_views(wb: Workbench) {
+    let c = wb.canvases;
+    Effect::new(move |_| {
+        let p = wb.plan.get();
+        let u = wb.unit.get();
+        let now = wb.rev.get();
+        let px = draw::cell_px(&p, TRAY_PX);
+        if let Some(canvas) = c.tray.get() {
+            draw::editor(&canvas, &p, px);
+            if let Some(i) = wb.cursor.get() {
+                draw::cursor(&canvas, &p, px, i);
+            }
+            if let Some((a, b)) = wb.rect_preview.get() {
+                draw::selection(&canvas, &p, px, a, b);
+            }
+        }
+        wb.quick.with(|q| {
+            let Some((_, q)) = q.as_ref().filter(|(r, _)| *r == now) else {
+                return;
+            };
+            let hp = draw::cell_px(&p, MAP_PX);
+            if let Some(canvas) = c.linear.get() {
+                let scale = wb.scale.get();
+                draw::heatmap(&canvas, &p, &q.linear, hp, scale, u, "linear prediction");
+            }
+            if let Some(canvas) = c.off_band.get() {
+                let title = "distance outside the band, linear prediction";
+                draw::heatmap(&canvas, &p, &q.error_linear, hp, Scale::OffBand, u, title);
+            }
+            if let Some(canvas) = c.bars.get() {
+                draw::dwell_bars(&canvas, &q.dwell);
+            }
+        });
+        measure("tc-input-to-frame", "tc-input");
+    });
+    Effect::new(move |_| {
+        let u = wb.unit.get();
+        let (view, depth) = (wb.sim_view.get(), wb.sim_depth.get());
+        wb.eval.with(|e| {
+            let Some((r, Ok(e))) = e else { return };
+            if *r != wb.rev.get_untracked() {
+                return;
+            }
+            let p = wb.plan.get_untracked();
+            if let Some(canvas) = c.simulated.get() {
+                let temps = view.temps(&e.course, depth, &p.food);
+                let title = format!("simulated {} after standing", view.caption(depth));
+                let hp = draw::cell_px(&p, MAP_PX);
+                draw::heatmap(&canvas, &p, &temps, hp, wb.scale.get(), u, &title);
+            }
+            if let Some(canvas) = c.course.get() {
+                draw::time_course(&canvas, &p, e, u);
+            }
+        });
+        measure("tc-full-frame", "tc-eval-start");
+    });
+}
