@@ -1,7 +1,7 @@
 // Traycast offline cache. On install it reads the built index.html and caches every file it
 // references (Trunk hashes their names, so the list is whatever this build produced), then serves
 // network first with the cache as fallback, so the workbench starts with the network off.
-const CACHE = 'traycast-offline-v1';
+const CACHE = 'traycast-offline-v2';
 
 self.addEventListener('install', (event) => {
   event.waitUntil((async () => {
@@ -9,7 +9,7 @@ self.addEventListener('install', (event) => {
     const index = await fetch('./', { cache: 'no-store' });
     const html = await index.clone().text();
     await cache.put('./', index);
-    const urls = new Set(['manifest.webmanifest', 'icon.svg']);
+    const urls = new Set(['manifest.webmanifest', 'icon.svg', 'worker.js']);
     for (const m of html.matchAll(/(?:href|src)="([^"#]+)"/g)) {
       if (!m[1].startsWith('http')) urls.add(m[1]);
     }

@@ -366,6 +366,51 @@ await test('the simulated map shows the point of each cell the user picks, and s
   assert(/4 mm below the top/.test(await caption()), 'says the depth: ' + (await caption()));
 });
 
+await test('the full evaluation runs in a worker; painting gets its fast views at once', async ({ page }) => {
+  await open(page);
+  assert(await page.evaluate(() => window.traycast.evaluatedIn()) === 'worker', 'evaluated in the worker');
+  const before = await evaluation(page);
+  await page.locator('.zone .swatch').nth(1).click();
+  await drag(page, [2, 2], [6, 8]);
+  const after = await evaluation(page);
+  assert(!same(before.dwell_s, after.dwell_s), 'the worker answered the new plan');
+  assert(await page.evaluate(() => window.traycast.evaluatedIn()) === 'worker', 'still in the worker');
+});
+
+await test('? lists the shortcuts; keys typed into a field stay text', async ({ page }) => {
+  await open(page);
+  const overlay = page.locator('#shortcuts');
+  assert(!(await overlay.isVisible()), 'hidden at first');
+  await page.locator('body').press('?');
+  assert(await overlay.isVisible(), 'shown on ?');
+  assert((await overlay.textContent()).includes('rectangle mode'), 'lists the rectangle key');
+  await page.keyboard.press('Escape');
+  assert(!(await overlay.isVisible()), 'closed on Escape');
+  const rect = page.getByRole('button', { name: 'Rectangle' });
+  await page.locator('.plan-name').click();
+  await page.keyboard.type('r?');
+  assert(!(await overlay.isVisible()), 'typing ? in a field opens nothing');
+  assert(await rect.getAttribute('aria-pressed') === 'false', 'typing r in a field leaves the tool alone');
+  await page.locator('#show-shortcuts').click();
+  assert(await overlay.isVisible(), 'the ? button shows the list too');
+});
+
+await test('planning for the safe minimum: chosen in the workbench, carried in the plan, the loop reported; a start already too warm is refused by name', async ({ page }) => {
+  await open(page);
+  // The lunch-tray demo's pudding may start above its cold-holding limit: no schedule can hold it.
+  await page.selectOption('#objective', 'safe-minimum');
+  await page.waitForFunction(() => (document.querySelector('#summary .error') || {}).textContent?.includes('Vanilla pudding'), null, { timeout: 30000 });
+  assert(await page.evaluate(() => window.traycast.plan().planning.objective) === 'safe-minimum', 'the refused plan is kept as edited');
+  await page.selectOption('select[aria-label="open a demo"]', 'hot-lunch');
+  await page.selectOption('#objective', 'safe-minimum');
+  const e = await evaluation(page);
+  assert(e.planning.objective === 'safe-minimum', 'objective in the summary: ' + JSON.stringify(e.planning));
+  assert((await plan(page)).planning.objective === 'safe-minimum', 'objective in the plan');
+  assert(e.items.every((it) => it.safe), 'every item safe at its judged point');
+  assert(await page.locator('#loop-report').isVisible(), 'the loop is reported');
+  assert((await page.locator('#uniformity').textContent()).includes('unsteered'), 'uniformity beside the unsteered baseline');
+});
+
 await browser.close();
 const passed = results.filter((r) => r[1]).length;
 const failed = results.length - passed;

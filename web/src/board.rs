@@ -63,8 +63,12 @@ fn hover_text(wb: Workbench) -> String {
     }
     let u = wb.unit.get();
     let (r, c) = (i / p.tray.width, i % p.tray.width);
-    let food = p.item_at(i).map_or("empty".to_string(), |k| p.items[k].name.clone());
-    let zone = p.zone_at(i).map_or("no target".to_string(), |z| p.zones[z].name.clone());
+    let food = p
+        .item_at(i)
+        .map_or("empty".to_string(), |k| p.items[k].name.clone());
+    let zone = p
+        .zone_at(i)
+        .map_or("no target".to_string(), |z| p.zones[z].name.clone());
     let place = format!("row {r}, col {c}: {food}, {zone}");
     wb.with_current(|e| {
         let depth = if e.course.coldest_depth[i].is_finite() {
@@ -98,7 +102,10 @@ pub fn Board() -> impl IntoView {
     let on_down = move |ev: web_sys::PointerEvent| {
         let Some(i) = cell_at(wb, &ev) else { return };
         crate::compute::mark("tc-input");
-        if let Some(t) = ev.target().and_then(|t| t.dyn_into::<web_sys::Element>().ok()) {
+        if let Some(t) = ev
+            .target()
+            .and_then(|t| t.dyn_into::<web_sys::Element>().ok())
+        {
             let _ = t.set_pointer_capture(ev.pointer_id());
         }
         wb.begin_stroke(i);

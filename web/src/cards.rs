@@ -2,21 +2,18 @@
 //! summary carries (the point judged and where, its temperature and bound, the kill, the stand,
 //! the rule), in the unit the user picked, with the cautions beside them.
 
-use crate::units::Unit;
+use crate::state::workbench;
 use leptos::prelude::*;
-use traycast_plan::evaluate::{Evaluation, SafetyCard};
-use traycast_plan::model::Plan;
+use traycast_plan::evaluate::SafetyCard;
 use traycast_thermal::safety::CAUTIONS;
 
 /// The cards of the current evaluation, and the cautions.
 #[component]
-pub fn SafetyCards(
-    plan: RwSignal<Plan>,
-    eval: RwSignal<Option<Result<Evaluation, String>>>,
-    unit: RwSignal<Unit>,
-) -> impl IntoView {
+pub fn SafetyCards() -> impl IntoView {
+    let wb = workbench();
+    let (plan, unit) = (wb.plan, wb.unit);
     let cards = move || {
-        eval.with(|e| {
+        wb.with_latest(|e| {
             let Some(Ok(e)) = e else { return Vec::new() };
             let u = unit.get();
             plan.with(|p| {

@@ -63,7 +63,9 @@ fn read_picked_file(ev: &leptos::ev::Event, wb: Workbench, then: impl FnOnce(Str
     leptos::task::spawn_local(async move {
         match gloo::file::futures::read_as_text(&file).await {
             Ok(text) => then(text),
-            Err(e) => wb.notice.set(Some(format!("The file could not be read: {e}"))),
+            Err(e) => wb
+                .notice
+                .set(Some(format!("The file could not be read: {e}"))),
         }
     });
 }
@@ -73,9 +75,12 @@ fn import_library(wb: Workbench, text: String) {
         Ok(lib) => {
             let (name, configs) = (lib.name.clone(), lib.configs);
             wb.use_library(lib, |p| p.oven.configs = configs);
-            wb.notice.set(Some(format!("Map library '{name}' imported.")));
+            wb.notice
+                .set(Some(format!("Map library '{name}' imported.")));
         }
-        Err(e) => wb.notice.set(Some(format!("The map library was refused: {e}"))),
+        Err(e) => wb
+            .notice
+            .set(Some(format!("The map library was refused: {e}"))),
     }
 }
 
@@ -115,7 +120,9 @@ fn export_schedule(wb: Workbench) {
 fn invent_runs(wb: Workbench) {
     match runs::heating_runs(&wb.plan.get_untracked(), &RunRecipe::default()) {
         Ok(t) => download("illustrative-runs.csv", "text/csv", &t),
-        Err(e) => wb.notice.set(Some(format!("No runs could be invented for this tray: {e}"))),
+        Err(e) => wb.notice.set(Some(format!(
+            "No runs could be invented for this tray: {e}"
+        ))),
     }
 }
 
@@ -123,7 +130,8 @@ fn invent_runs(wb: Workbench) {
 #[component]
 pub fn Files() -> impl IntoView {
     let wb = workbench();
-    let on_library = move |ev: leptos::ev::Event| read_picked_file(&ev, wb, move |t| import_library(wb, t));
+    let on_library =
+        move |ev: leptos::ev::Event| read_picked_file(&ev, wb, move |t| import_library(wb, t));
     let on_runs = move |ev: leptos::ev::Event| {
         let fahrenheit = wb.runs_in_f.get_untracked();
         read_picked_file(&ev, wb, move |t| calibrate_from(wb, t, fahrenheit));
@@ -131,10 +139,18 @@ pub fn Files() -> impl IntoView {
     let on_plan = move |ev: leptos::ev::Event| {
         read_picked_file(&ev, wb, move |text| match wire::from_json(&text) {
             Ok(p) => wb.edit(|cur| *cur = p),
-            Err(e) => wb.notice.set(Some(format!("The plan file was refused: {e}"))),
+            Err(e) => wb
+                .notice
+                .set(Some(format!("The plan file was refused: {e}"))),
         });
     };
-    let save_plan = move |_| download("plan.traycast.json", "application/json", &wire::to_json(&wb.plan.get_untracked()));
+    let save_plan = move |_| {
+        download(
+            "plan.traycast.json",
+            "application/json",
+            &wire::to_json(&wb.plan.get_untracked()),
+        )
+    };
     let print = move |_| {
         if let Some(w) = web_sys::window() {
             let _ = w.print();

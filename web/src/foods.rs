@@ -19,8 +19,16 @@ pub fn Foods() -> impl IntoView {
     let count = Memo::new(move |_| plan.with(|p| p.items.len()));
     let row = move |k: usize| {
         let colour = draw::FOOD_COLOURS[k % draw::FOOD_COLOURS.len()];
-        let set = move |f: Box<dyn FnOnce(&mut FoodItem)>| wb.edit(|p| if let Some(i) = p.items.get_mut(k) { f(i) });
-        let show = move |f: fn(&FoodItem) -> String| move || plan.with(|p| p.items.get(k).map(f).unwrap_or_default());
+        let set = move |f: Box<dyn FnOnce(&mut FoodItem)>| {
+            wb.edit(|p| {
+                if let Some(i) = p.items.get_mut(k) {
+                    f(i)
+                }
+            })
+        };
+        let show = move |f: fn(&FoodItem) -> String| {
+            move || plan.with(|p| p.items.get(k).map(f).unwrap_or_default())
+        };
         view! {
             <div class="row item" class:active=move || tool.get() == Tool::Food(k)>
                 <button class="swatch" style=format!("background:{colour}") title="Paint this food (key 1–9)" aria-label=format!("paint food {}", k + 1) aria-pressed=move || (tool.get() == Tool::Food(k)).to_string() on:click=move |_| tool.set(Tool::Food(k))></button>
@@ -41,7 +49,13 @@ pub fn Foods() -> impl IntoView {
     let add = move |_| {
         wb.edit(|p| {
             if p.items.len() < MOST {
-                p.items.push(FoodItem { name: format!("Food {}", p.items.len() + 1), food: "rice".into(), thickness_mm: 20.0, start_c: 4.0, covered: false });
+                p.items.push(FoodItem {
+                    name: format!("Food {}", p.items.len() + 1),
+                    food: "rice".into(),
+                    thickness_mm: 20.0,
+                    start_c: 4.0,
+                    covered: false,
+                });
             }
         })
     };
@@ -60,9 +74,25 @@ pub fn Targets() -> impl IntoView {
     let count = Memo::new(move |_| plan.with(|p| p.zones.len()));
     let row = move |k: usize| {
         let colour = draw::ZONE_COLOURS[k % draw::ZONE_COLOURS.len()];
-        let set = move |f: Box<dyn FnOnce(&mut Zone)>| wb.edit(|p| if let Some(z) = p.zones.get_mut(k) { f(z) });
-        let temp = move |get: fn(&Zone) -> f64| move || plan.with(|p| p.zones.get(k).map(|z| format!("{:.1}", unit.get().temp(get(z)))).unwrap_or_default());
-        let celsius = move |ev: &leptos::ev::Event| num(ev).map(|v| unit.get_untracked().to_celsius(v));
+        let set = move |f: Box<dyn FnOnce(&mut Zone)>| {
+            wb.edit(|p| {
+                if let Some(z) = p.zones.get_mut(k) {
+                    f(z)
+                }
+            })
+        };
+        let temp = move |get: fn(&Zone) -> f64| {
+            move || {
+                plan.with(|p| {
+                    p.zones
+                        .get(k)
+                        .map(|z| format!("{:.1}", unit.get().temp(get(z))))
+                        .unwrap_or_default()
+                })
+            }
+        };
+        let celsius =
+            move |ev: &leptos::ev::Event| num(ev).map(|v| unit.get_untracked().to_celsius(v));
         view! {
             <div class="row zone" class:active=move || tool.get() == Tool::Zone(k)>
                 <button class="swatch" style=format!("background:{colour};color:#fff") title="Paint this target" aria-label=format!("paint target {}", k + 1) aria-pressed=move || (tool.get() == Tool::Zone(k)).to_string() on:click=move |_| tool.set(Tool::Zone(k))>{draw::ZONE_GLYPHS[k % draw::ZONE_GLYPHS.len()]}</button>
@@ -82,7 +112,13 @@ pub fn Targets() -> impl IntoView {
     let add = move |_| {
         wb.edit(|p| {
             if p.zones.len() < MOST {
-                p.zones.push(Zone { name: format!("Target {}", p.zones.len() + 1), min_c: 70.0, max_c: 80.0, weight: 1.0, cap_c: None });
+                p.zones.push(Zone {
+                    name: format!("Target {}", p.zones.len() + 1),
+                    min_c: 70.0,
+                    max_c: 80.0,
+                    weight: 1.0,
+                    cap_c: None,
+                });
             }
         })
     };

@@ -22,7 +22,11 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
         }
     };
     let new_blank = move |_| {
-        let (w, h, mm) = (blank_w.get_untracked(), blank_h.get_untracked(), blank_mm.get_untracked());
+        let (w, h, mm) = (
+            blank_w.get_untracked(),
+            blank_h.get_untracked(),
+            blank_mm.get_untracked(),
+        );
         wb.edit(|p| *p = Plan::blank(w, h, mm));
     };
     let share = move |_| {
@@ -33,7 +37,13 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
         }
     };
     let flip_unit = move |_| {
-        unit.update(|u| *u = if *u == Unit::Celsius { Unit::Fahrenheit } else { Unit::Celsius })
+        unit.update(|u| {
+            *u = if *u == Unit::Celsius {
+                Unit::Fahrenheit
+            } else {
+                Unit::Celsius
+            }
+        })
     };
     view! {
         <header>

@@ -62,11 +62,6 @@ impl<T: Clone + PartialEq> History<T> {
             self.back.pop();
         }
     }
-
-    /// Whether there is anything to undo, and to redo.
-    pub fn can(&self) -> (bool, bool) {
-        (!self.back.is_empty(), !self.forward.is_empty())
-    }
 }
 
 #[cfg(test)]
@@ -90,14 +85,14 @@ mod tests {
         s = h.undo(s).unwrap();
         assert_eq!(s, 1);
         assert_eq!(h.undo(s), None, "nothing before the first state");
-        assert_eq!(h.can(), (false, true));
+        assert_eq!(h.redo(s), Some(2), "and the undone steps wait to be redone");
     }
 
     #[test]
     fn an_edit_that_changes_nothing_is_not_a_step() {
         let mut h = History::new(10);
         assert_eq!(h.edit(&5, |v| *v = 5), None);
-        assert_eq!(h.can(), (false, false));
+        assert_eq!(h.undo(5), None);
     }
 
     #[test]

@@ -3,17 +3,40 @@
 //! A Leptos client-side app on the plan crate compiled to wasm; no server. The numbers it shows come
 //! from `traycast-plan`; this crate only edits, draws and stores.
 
+use wasm_bindgen::JsCast;
+
 mod app;
+mod board;
+mod brush;
 mod cards;
+mod compute;
 mod draw;
+mod files;
+mod foods;
+mod form;
+mod header;
+mod history;
+mod outcome;
+mod oven;
 mod paint;
 mod planning;
+mod quality;
+mod shortcuts;
 mod simview;
+mod state;
 mod storage;
 mod surface;
 mod units;
+mod views;
+mod worker;
 
 fn main() {
+    // The same program runs in the evaluation worker: there it only answers plans.
+    if let Ok(scope) = js_sys::global().dyn_into::<web_sys::DedicatedWorkerGlobalScope>() {
+        console_error_panic_hook::set_once();
+        worker::serve(scope);
+        return;
+    }
     std::panic::set_hook(Box::new(|info| {
         console_error_panic_hook::hook(info);
         // Recoverable message instead of a dead page.

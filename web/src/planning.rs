@@ -2,9 +2,9 @@
 //! planning did: the simulation loop's report and how evenly each item heats, steered against
 //! unsteered.
 
+use crate::state::workbench;
 use leptos::prelude::*;
-use traycast_plan::evaluate::{Evaluation, Uniformity};
-use traycast_plan::model::Plan;
+use traycast_plan::evaluate::Uniformity;
 use traycast_plan::{Objective, Planning};
 
 fn label(o: Objective) -> &'static str {
@@ -16,23 +16,25 @@ fn label(o: Objective) -> &'static str {
     }
 }
 
-/// The objective picker and the placement switch; `set` receives the new settings.
+/// The objective picker and the placement switch.
 #[component]
-pub fn PlanningPanel(plan: RwSignal<Plan>, set: Callback<Planning>) -> impl IntoView {
-    let current = move || plan.with(|p| p.planning);
+pub fn PlanningPanel() -> impl IntoView {
+    let wb = workbench();
+    let current = move || wb.plan.with(|p| p.planning);
+    let set = move |planning: Planning| wb.edit(|p| p.planning = planning);
     let on_objective = move |ev: leptos::ev::Event| {
         if let Ok(o) = Objective::parse(&event_target_value(&ev), "objective") {
             let mut next = current();
             next.objective = o;
             // Placement scenarios hold hard limits, which the band fit has none of.
             next.placement &= o.is_constrained();
-            set.run(next);
+            set(next);
         }
     };
     let on_placement = move |ev: leptos::ev::Event| {
         let mut next = current();
         next.placement = event_target_checked(&ev);
-        set.run(next);
+        set(next);
     };
     view! {
         <h2>"Plan for"</h2>
@@ -70,12 +72,11 @@ fn figure(u: &Uniformity) -> String {
 
 /// The simulation loop's report and the uniformity table of the current evaluation.
 #[component]
-pub fn PlanningReport(
-    plan: RwSignal<Plan>,
-    eval: RwSignal<Option<Result<Evaluation, String>>>,
-) -> impl IntoView {
+pub fn PlanningReport() -> impl IntoView {
+    let wb = workbench();
+    let plan = wb.plan;
     let report = move || {
-        eval.with(|e| {
+        wb.with_latest(|e| {
             let Some(Ok(e)) = e else { return None };
             let loop_line = e.refinement.as_ref().map(|r| {
                 format!(

@@ -9,7 +9,7 @@ use leptos::prelude::*;
 #[component]
 pub fn CalibrationQuality() -> impl IntoView {
     let wb = workbench();
-    let report = move || {
+    move || {
         wb.quality.with(|q| {
             q.as_ref().map(|(r, _)| {
                 let pct = |v: f64| if v.is_finite() { format!("{:.1} %", 100.0 * v) } else { "—".into() };
@@ -44,6 +44,5 @@ pub fn CalibrationQuality() -> impl IntoView {
                 }
             })
         })
-    };
-    report
+    }
 }

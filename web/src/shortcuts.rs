@@ -66,7 +66,10 @@ pub fn action(key: &str, ctrl: bool, shift: bool) -> Option<Action> {
 
 /// True when the event comes from a form control or editable text, where keys are typing.
 fn typing(ev: &web_sys::KeyboardEvent) -> bool {
-    let Some(el) = ev.target().and_then(|t| t.dyn_into::<web_sys::HtmlElement>().ok()) else {
+    let Some(el) = ev
+        .target()
+        .and_then(|t| t.dyn_into::<web_sys::HtmlElement>().ok())
+    else {
         return false;
     };
     matches!(el.tag_name().as_str(), "INPUT" | "SELECT" | "TEXTAREA") || el.is_content_editable()

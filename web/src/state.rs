@@ -115,7 +115,9 @@ impl Workbench {
                 _ => Vec::new(),
             });
             let simulated = eval.with(|e| match e {
-                Some((r, Ok(e))) if *r == now => plan.with(|p| view.temps(&e.course, depth, &p.food)),
+                Some((r, Ok(e))) if *r == now => {
+                    plan.with(|p| view.temps(&e.course, depth, &p.food))
+                }
                 _ => Vec::new(),
             });
             Scale::spanning(&[&linear, &simulated])

@@ -1,5 +1,6 @@
 //! A small JavaScript-facing surface: `window.traycast.plan()` and `window.traycast.evaluation()`
-//! return plain objects, so tests read numbers instead of pixels and a host page can embed us.
+//! return plain objects (`settled()` says whether the evaluation is current, `evaluatedIn()` where
+//! it ran), so tests read numbers instead of pixels and a host page can embed us.
 
 use std::cell::RefCell;
 use traycast_plan::evaluate::Evaluation;
@@ -12,6 +13,13 @@ thread_local! {
     static CURRENT: RefCell<(Option<Plan>, Option<serde_json::Value>)> = const { RefCell::new((None, None)) };
     /// False while an edit's full evaluation is still pending.
     static SETTLED: RefCell<bool> = const { RefCell::new(false) };
+    /// Where the last full evaluation ran: "worker", "page", or "none" yet.
+    static EVALUATED_IN: RefCell<&'static str> = const { RefCell::new("none") };
+}
+
+/// Records where the last full evaluation ran ("worker" or "page").
+pub fn evaluated_in(place: &'static str) {
+    EVALUATED_IN.with(|e| *e.borrow_mut() = place);
 }
 
 /// Marks the published evaluation as out of date (an edit is being evaluated).
@@ -64,6 +72,11 @@ pub fn install() {
         Closure::<dyn Fn() -> JsValue>::new(|| JsValue::from_bool(SETTLED.with(|s| *s.borrow())));
     let _ = js_sys::Reflect::set(&api, &"settled".into(), settled.as_ref());
     settled.forget();
+    let place = Closure::<dyn Fn() -> JsValue>::new(|| {
+        JsValue::from_str(EVALUATED_IN.with(|e| *e.borrow()))
+    });
+    let _ = js_sys::Reflect::set(&api, &"evaluatedIn".into(), place.as_ref());
+    place.forget();
     let _ = js_sys::Reflect::set(&window, &"traycast".into(), &api);
     plan.forget();
     evaluation.forget();

@@ -140,9 +140,8 @@ impl Evaluations {
 
     fn listen(&self, worker: Worker) {
         let me = self.clone();
-        let on_message = Closure::<dyn FnMut(MessageEvent)>::new(move |ev: MessageEvent| {
-            me.answered(ev.data())
-        });
+        let on_message =
+            Closure::<dyn FnMut(MessageEvent)>::new(move |ev: MessageEvent| me.answered(ev.data()));
         worker.set_onmessage(Some(on_message.as_ref().unchecked_ref()));
         on_message.forget();
         let me = self.clone();

@@ -33,7 +33,9 @@ fn vertical_title(g: &CanvasRenderingContext2d, text: &str, x: f64, y: f64) {
 /// Dwell bars: seconds per configuration, labelled every few configurations.
 pub fn dwell_bars(canvas: &HtmlCanvasElement, dwell: &[f64]) {
     let (width, height) = (420.0, 170.0);
-    let Some(g) = clear(canvas, width, height) else { return };
+    let Some(g) = clear(canvas, width, height) else {
+        return;
+    };
     let (left, bottom) = (44.0, 34.0);
     let n = dwell.len().max(1);
     let max = dwell.iter().copied().fold(1.0f64, f64::max);
@@ -67,7 +69,9 @@ pub fn time_course(canvas: &HtmlCanvasElement, plan: &Plan, eval: &Evaluation, u
     let legend_rows = items.div_ceil(3) + 1;
     let (width, plot_h) = (420.0, 170.0);
     let height = plot_h + 30.0 + 14.0 * legend_rows as f64;
-    let Some(g) = clear(canvas, width, height) else { return };
+    let Some(g) = clear(canvas, width, height) else {
+        return;
+    };
     let times = &eval.course.times;
     let t_max = times.last().copied().unwrap_or(1.0).max(1.0);
     let (lo, hi) = (-20.0f64, 105.0f64);
@@ -97,14 +101,26 @@ pub fn time_course(canvas: &HtmlCanvasElement, plan: &Plan, eval: &Evaluation, u
     g.set_text_align("left");
     let _ = g.fill_text("0", left, plot_h + 4.0);
     g.set_text_align("center");
-    let _ = g.fill_text("time (s), heating then standing", left + (width - left) / 2.0, plot_h + 16.0);
-    vertical_title(&g, &format!("temperature ({})", unit.symbol()), 12.0, plot_h / 2.0);
+    let _ = g.fill_text(
+        "time (s), heating then standing",
+        left + (width - left) / 2.0,
+        plot_h + 16.0,
+    );
+    vertical_title(
+        &g,
+        &format!("temperature ({})", unit.symbol()),
+        12.0,
+        plot_h / 2.0,
+    );
     g.set_text_align("left");
     // Target bands of the zones, dashed, in the zone colours.
     let _ = g.set_line_dash(&js_sys::Array::of2(&4.0.into(), &4.0.into()));
     for (z, zone) in plan.zones.iter().enumerate() {
         g.set_stroke_style_str(ZONE_COLOURS[z % ZONE_COLOURS.len()]);
-        for v in [zone.min_c, zone.max_c].into_iter().filter(|v| (lo..=hi).contains(v)) {
+        for v in [zone.min_c, zone.max_c]
+            .into_iter()
+            .filter(|v| (lo..=hi).contains(v))
+        {
             g.begin_path();
             g.move_to(left, y(v));
             g.line_to(width - 8.0, y(v));

@@ -124,9 +124,11 @@ pub fn heatmap(
     g.set_fill_style_str("#ffffff");
     g.fill_rect(0.0, 0.0, width, map_h + legend);
     let buf = pixels(plan, values, cell, scale);
-    if let Ok(img) =
-        ImageData::new_with_u8_clamped_array_and_sh(Clamped(&buf), (w * cell) as u32, (h * cell) as u32)
-    {
+    if let Ok(img) = ImageData::new_with_u8_clamped_array_and_sh(
+        Clamped(&buf),
+        (w * cell) as u32,
+        (h * cell) as u32,
+    ) {
         let _ = g.put_image_data(&img, 0.0, 0.0);
     }
     // Legend: a strip with its ends and middle, saying where the scale is clipped.
@@ -146,7 +148,11 @@ pub fn heatmap(
         Scale::OffBand => {
             let k = unit.diff(OFF_BAND_CLIP_K);
             let d = unit.diff_symbol();
-            (format!("≤ −{k:.0}"), "0 in band".to_string(), format!("≥ +{k:.0} {d} off band"))
+            (
+                format!("≤ −{k:.0}"),
+                "0 in band".to_string(),
+                format!("≥ +{k:.0} {d} off band"),
+            )
         }
         Scale::Temperature { lo, hi } => (
             format!("{:.0}", unit.temp(lo)),
@@ -169,8 +175,14 @@ mod tests {
     fn a_shared_scale_spans_every_map_and_skips_empty_cells() {
         let a = [20.0, f64::NAN, 60.0];
         let b = [35.0, 75.0];
-        assert_eq!(Scale::spanning(&[&a, &b]), Scale::Temperature { lo: 20.0, hi: 75.0 });
-        assert_eq!(Scale::spanning(&[&[f64::NAN]]), Scale::Temperature { lo: 0.0, hi: 1.0 });
+        assert_eq!(
+            Scale::spanning(&[&a, &b]),
+            Scale::Temperature { lo: 20.0, hi: 75.0 }
+        );
+        assert_eq!(
+            Scale::spanning(&[&[f64::NAN]]),
+            Scale::Temperature { lo: 0.0, hi: 1.0 }
+        );
     }
 
     #[test]
