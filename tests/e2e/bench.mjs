@@ -28,7 +28,7 @@ const stats = await page.evaluate(() => {
     const v = performance.getEntriesByName(name).map((e) => e.duration).sort((a, b) => a - b);
     return { count: v.length, median_ms: v[Math.floor(v.length / 2)], p95_ms: v[Math.floor(v.length * 0.95)] };
   };
-  return { quick: q('tc-quick'), input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), full_frame: q('tc-full-frame') };
+  return { quick: q('tc-quick'), input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), worker: q('tc-worker-evaluate'), draw_tray: q('tc-draw-tray'), draw_maps: q('tc-draw-maps'), full_frame: q('tc-full-frame') };
 });
 const isolated = await page.evaluate(() => window.crossOriginIsolated === true);
 console.log(JSON.stringify({ ...stats, isolated, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));

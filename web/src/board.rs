@@ -47,7 +47,6 @@ fn on_tray_key(wb: Workbench, ev: web_sys::KeyboardEvent) {
         ev.prevent_default();
         let i = at.unwrap_or(0);
         wb.cursor.set(Some(i));
-        crate::compute::mark("tc-input");
         wb.paint_cell(i);
     }
 }
@@ -101,7 +100,6 @@ pub fn Board() -> impl IntoView {
     let c = wb.canvases;
     let on_down = move |ev: web_sys::PointerEvent| {
         let Some(i) = cell_at(wb, &ev) else { return };
-        crate::compute::mark("tc-input");
         if let Some(t) = ev
             .target()
             .and_then(|t| t.dyn_into::<web_sys::Element>().ok())
@@ -116,14 +114,10 @@ pub fn Board() -> impl IntoView {
         if let Some(i) = cell
             && wb.stroke.get_value().is_some()
         {
-            crate::compute::mark("tc-input");
             wb.continue_stroke(i);
         }
     };
     let on_up = move |ev: web_sys::PointerEvent| {
-        if wb.rect.get_untracked() {
-            crate::compute::mark("tc-input");
-        }
         wb.end_stroke(cell_at(wb, &ev));
     };
     let png = move |r: NodeRef<html::Canvas>, name: &'static str| {
@@ -138,7 +132,7 @@ pub fn Board() -> impl IntoView {
     let (unit, sim_view, sim_depth) = (wb.unit, wb.sim_view, wb.sim_depth);
     view! {
         <section class="board">
-            <h2>"Tray " <small>{move || wb.plan.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
+            <h2>"Tray " <small>{move || wb.settings.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
             <canvas id="tray" node_ref=c.tray tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
                 on:keydown=move |ev| on_tray_key(wb, ev) on:blur=move |_| wb.cursor.set(None)
                 on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>

@@ -16,7 +16,7 @@ pub fn SafetyCards() -> impl IntoView {
         wb.with_latest(|e| {
             let Some(Ok(e)) = e else { return Vec::new() };
             let u = unit.get();
-            plan.with(|p| {
+            plan.with_untracked(|p| {
                 SafetyCard::all(p, e)
                     .into_iter()
                     .map(|card| {

@@ -1,7 +1,7 @@
 //! Keeping the results up with the plan: on every change the fast path (warm solve and linear
-//! prediction) runs at once, the plan is autosaved and the link rewritten; once the strokes pause
-//! the full evaluation is asked of the worker, and its answer is kept only for the revision it
-//! belongs to.
+//! prediction) runs at once; once the strokes pause the plan is autosaved, the link rewritten and
+//! the full evaluation asked of the worker, whose answer is kept only for the revision it belongs
+//! to. Leaving the page saves at once.
 
 use crate::state::Workbench;
 use crate::storage;
@@ -13,10 +13,50 @@ use traycast_plan::evaluate::Evaluator;
 /// Milliseconds of quiet after a change before the full evaluation is asked for.
 const PAUSE_MS: u32 = 30;
 
+thread_local! {
+    /// An input is waiting for its fast views: only redraws an input caused are timed as such.
+    static INPUT_PENDING: std::cell::Cell<bool> = const { std::cell::Cell::new(false) };
+}
+
 /// Sets a performance mark (read by `cargo xtask bench-web`).
 pub fn mark(name: &str) {
     if let Some(p) = web_sys::window().and_then(|w| w.performance()) {
         let _ = p.mark(name);
+    }
+}
+
+/// Marks an input (a stroke, a key that paints): the next fast redraw is timed from here.
+pub fn mark_input() {
+    INPUT_PENDING.with(|p| p.set(true));
+    mark("tc-input");
+}
+
+/// The input changed nothing: there is no redraw to time.
+pub fn cancel_input() {
+    INPUT_PENDING.with(|p| p.set(false));
+}
+
+/// Times "input → fast views" once the redraw an input caused is done (redraws for other reasons,
+/// such as a full evaluation arriving, are not inputs).
+pub fn measure_input() {
+    if INPUT_PENDING.with(|p| p.replace(false)) {
+        measure("tc-input-to-frame", "tc-input");
+    }
+}
+
+/// Records a span of `ms` milliseconds that ended now, measured elsewhere (the worker's own time).
+pub fn record(name: &str, ms: f64) {
+    use js_sys::{Function, Object, Reflect};
+    use wasm_bindgen::{JsCast, JsValue};
+    let Some(p) = web_sys::window().and_then(|w| w.performance()) else {
+        return;
+    };
+    let end = p.now();
+    let span = Object::new();
+    let _ = Reflect::set(&span, &"start".into(), &JsValue::from_f64(end - ms));
+    let _ = Reflect::set(&span, &"end".into(), &JsValue::from_f64(end));
+    if let Ok(f) = Reflect::get(&p, &"measure".into()).and_then(|f| f.dyn_into::<Function>()) {
+        let _ = f.call2(&p, &JsValue::from_str(name), &span);
     }
 }
 
@@ -35,7 +75,10 @@ pub fn keep_current(wb: Workbench) {
     let timer = StoredValue::new_local(None::<gloo::timers::callback::Timeout>);
     // An answer for an earlier revision is dropped: the newest plan is already on its way.
     let evaluations = StoredValue::new_local(Evaluations::start(
-        move |(r, result): Outcome| {
+        move |(r, result, ms): Outcome| {
+            if let Some(ms) = ms {
+                record("tc-worker-evaluate", ms);
+            }
             if r != wb.rev.get_untracked() {
                 return;
             }
@@ -45,6 +88,11 @@ pub fn keep_current(wb: Workbench) {
         },
         move || wb.library.get_untracked(),
     ));
+    // A page closed mid-stroke still keeps the last edit.
+    let hide = window_event_listener(leptos::ev::pagehide, move |_| {
+        storage::save(&wb.plan.get_untracked())
+    });
+    on_cleanup(move || hide.remove());
     Effect::new(move |_| {
         let p = wb.plan.get();
         let lib = wb.library_rev.get();
@@ -67,11 +115,13 @@ pub fn keep_current(wb: Workbench) {
                 wb.eval.set(Some((now, Err(e.to_string()))));
             }
         }
-        storage::save(&p);
-        wb.link_len.set(storage::set_fragment(&p));
+        // Autosave, the link and the full evaluation wait for the pause: a stroke pays for none.
         let full = gloo::timers::callback::Timeout::new(PAUSE_MS, move || {
+            let p = wb.plan.get_untracked();
+            storage::save(&p);
+            wb.link_len.set(storage::set_fragment(&p));
             mark("tc-eval-start");
-            evaluations.with_value(|w| w.request(now, wb.plan.get_untracked(), lib));
+            evaluations.with_value(|w| w.request(now, p, lib));
         });
         // Replacing the stored timeout cancels the one still waiting.
         timer.set_value(Some(full));

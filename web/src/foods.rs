@@ -15,8 +15,8 @@ const MOST: usize = 26;
 #[component]
 pub fn Foods() -> impl IntoView {
     let wb = workbench();
-    let (plan, unit, tool) = (wb.plan, wb.unit, wb.tool);
-    let count = Memo::new(move |_| plan.with(|p| p.items.len()));
+    let (unit, tool) = (wb.unit, wb.tool);
+    let count = Memo::new(move |_| wb.settings.with(|p| p.items.len()));
     let row = move |k: usize| {
         let colour = draw::FOOD_COLOURS[k % draw::FOOD_COLOURS.len()];
         let set = move |f: Box<dyn FnOnce(&mut FoodItem)>| {
@@ -27,7 +27,10 @@ pub fn Foods() -> impl IntoView {
             })
         };
         let show = move |f: fn(&FoodItem) -> String| {
-            move || plan.with(|p| p.items.get(k).map(f).unwrap_or_default())
+            move || {
+                wb.settings
+                    .with(|p| p.items.get(k).map(f).unwrap_or_default())
+            }
         };
         view! {
             <div class="row item" class:active=move || tool.get() == Tool::Food(k)>
@@ -35,13 +38,13 @@ pub fn Foods() -> impl IntoView {
                 <input class="name" aria-label="food item name" prop:value=show(|i| i.name.clone())
                     on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |i| i.name = v)); } />
                 <select aria-label="catalogue food" on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |i| i.food = v)); }>
-                    {CATALOGUE.iter().map(|f| { let id = f.id; view! { <option value=id selected=move || plan.with(|p| p.items.get(k).is_some_and(|i| i.food == id))>{f.name}</option> } }).collect_view()}
+                    {CATALOGUE.iter().map(|f| { let id = f.id; view! { <option value=id selected=move || wb.settings.with(|p| p.items.get(k).is_some_and(|i| i.food == id))>{f.name}</option> } }).collect_view()}
                 </select>
                 <label>"mm"<input class="short" type="number" step="1" aria-label="thickness (mm)" prop:value=show(|i| i.thickness_mm.to_string())
                     on:change=move |ev| if let Some(v) = num(&ev) { set(Box::new(move |i| i.thickness_mm = v)); } /></label>
-                <label>{move || format!("start {}", unit.get().symbol())}<input class="short" type="number" step="1" prop:value=move || plan.with(|p| p.items.get(k).map(|i| format!("{:.1}", unit.get().temp(i.start_c))).unwrap_or_default())
+                <label>{move || format!("start {}", unit.get().symbol())}<input class="short" type="number" step="1" prop:value=move || wb.settings.with(|p| p.items.get(k).map(|i| format!("{:.1}", unit.get().temp(i.start_c))).unwrap_or_default())
                     on:change=move |ev| if let Some(v) = num(&ev) { let c = unit.get_untracked().to_celsius(v); set(Box::new(move |i| i.start_c = c)); } /></label>
-                <label title="A cover keeps the moisture in; the Food Code asks for one when cooking raw animal foods">"covered"<input type="checkbox" prop:checked=move || plan.with(|p| p.items.get(k).is_some_and(|i| i.covered))
+                <label title="A cover keeps the moisture in; the Food Code asks for one when cooking raw animal foods">"covered"<input type="checkbox" prop:checked=move || wb.settings.with(|p| p.items.get(k).is_some_and(|i| i.covered))
                     on:change=move |ev| { let on = event_target_checked(&ev); set(Box::new(move |i| i.covered = on)); } /></label>
             </div>
         }
@@ -70,8 +73,8 @@ pub fn Foods() -> impl IntoView {
 #[component]
 pub fn Targets() -> impl IntoView {
     let wb = workbench();
-    let (plan, unit, tool) = (wb.plan, wb.unit, wb.tool);
-    let count = Memo::new(move |_| plan.with(|p| p.zones.len()));
+    let (unit, tool) = (wb.unit, wb.tool);
+    let count = Memo::new(move |_| wb.settings.with(|p| p.zones.len()));
     let row = move |k: usize| {
         let colour = draw::ZONE_COLOURS[k % draw::ZONE_COLOURS.len()];
         let set = move |f: Box<dyn FnOnce(&mut Zone)>| {
@@ -83,7 +86,7 @@ pub fn Targets() -> impl IntoView {
         };
         let temp = move |get: fn(&Zone) -> f64| {
             move || {
-                plan.with(|p| {
+                wb.settings.with(|p| {
                     p.zones
                         .get(k)
                         .map(|z| format!("{:.1}", unit.get().temp(get(z))))
@@ -96,15 +99,15 @@ pub fn Targets() -> impl IntoView {
         view! {
             <div class="row zone" class:active=move || tool.get() == Tool::Zone(k)>
                 <button class="swatch" style=format!("background:{colour};color:#fff") title="Paint this target" aria-label=format!("paint target {}", k + 1) aria-pressed=move || (tool.get() == Tool::Zone(k)).to_string() on:click=move |_| tool.set(Tool::Zone(k))>{draw::ZONE_GLYPHS[k % draw::ZONE_GLYPHS.len()]}</button>
-                <input class="name" aria-label="zone name" prop:value=move || plan.with(|p| p.zones.get(k).map(|z| z.name.clone()).unwrap_or_default())
+                <input class="name" aria-label="zone name" prop:value=move || wb.settings.with(|p| p.zones.get(k).map(|z| z.name.clone()).unwrap_or_default())
                     on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |z| z.name = v)); } />
                 <label>"min"<input class="short" type="number" data-zone-min=k prop:value=temp(|z| z.min_c)
                     on:change=move |ev| if let Some(c) = celsius(&ev) { set(Box::new(move |z| { z.min_c = c; z.max_c = z.max_c.max(c); })); } /></label>
                 <label>"max"<input class="short" type="number" data-zone-max=k prop:value=temp(|z| z.max_c)
                     on:change=move |ev| if let Some(c) = celsius(&ev) { set(Box::new(move |z| { z.max_c = c; z.min_c = z.min_c.min(c); })); } /></label>
-                <label>"weight"<input class="short" type="number" step="0.5" prop:value=move || plan.with(|p| p.zones.get(k).map(|z| z.weight.to_string()).unwrap_or_default())
+                <label>"weight"<input class="short" type="number" step="0.5" prop:value=move || wb.settings.with(|p| p.zones.get(k).map(|z| z.weight.to_string()).unwrap_or_default())
                     on:change=move |ev| if let Some(v) = num(&ev) { set(Box::new(move |z| z.weight = v.clamp(0.001, 1000.0))); } /></label>
-                <label>"cap"<input class="short" type="number" placeholder="none" prop:value=move || plan.with(|p| p.zones.get(k).and_then(|z| z.cap_c).map(|c| format!("{:.1}", unit.get().temp(c))).unwrap_or_default())
+                <label>"cap"<input class="short" type="number" placeholder="none" prop:value=move || wb.settings.with(|p| p.zones.get(k).and_then(|z| z.cap_c).map(|c| format!("{:.1}", unit.get().temp(c))).unwrap_or_default())
                     on:change=move |ev| { let v = celsius(&ev); set(Box::new(move |z| z.cap_c = v)); } /></label>
             </div>
         }

@@ -11,7 +11,7 @@ use traycast_plan::model::Plan;
 #[component]
 pub fn Header(help: RwSignal<bool>) -> impl IntoView {
     let wb = workbench();
-    let (plan, unit) = (wb.plan, wb.unit);
+    let unit = wb.unit;
     let blank_w = RwSignal::new(24usize);
     let blank_h = RwSignal::new(16usize);
     let blank_mm = RwSignal::new(12.0f64);
@@ -48,7 +48,7 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
     view! {
         <header>
             <h1>"Traycast"</h1>
-            <input class="plan-name" aria-label="plan name" prop:value=move || plan.with(|p| p.name.clone())
+            <input class="plan-name" aria-label="plan name" prop:value=move || wb.settings.with(|p| p.name.clone())
                 on:change=move |ev| { let v = event_target_value(&ev); wb.edit(|p| p.name = v); } />
             <select aria-label="open a demo" on:change=open_demo>
                 <option value="">"Open a demo (illustrative)…"</option>

@@ -13,7 +13,7 @@ pub fn Outcome() -> impl IntoView {
             None => view! { <p>"Solving…"</p> }.into_any(),
             Some(Err(msg)) => view! { <p class="error" role="alert">{format!("This plan cannot be solved: {msg}")}</p> }.into_any(),
             Some(Ok(e)) => {
-                let p = wb.plan.get();
+                let p = wb.plan.get_untracked();
                 let u = wb.unit.get();
                 let with_spread = e.items.iter().any(|s| s.spread.is_some());
                 let items = p.items.iter().zip(&e.items).map(|(it, s)| {

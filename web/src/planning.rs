@@ -20,7 +20,7 @@ fn label(o: Objective) -> &'static str {
 #[component]
 pub fn PlanningPanel() -> impl IntoView {
     let wb = workbench();
-    let current = move || wb.plan.with(|p| p.planning);
+    let current = move || wb.settings.with(|p| p.planning);
     let set = move |planning: Planning| wb.edit(|p| p.planning = planning);
     let on_objective = move |ev: leptos::ev::Event| {
         if let Ok(o) = Objective::parse(&event_target_value(&ev), "objective") {
@@ -98,7 +98,7 @@ pub fn PlanningReport() -> impl IntoView {
                     .map(|w| format!(" Stopped early, keeping the best plan so far: {w}"))
                     .unwrap_or_default()
             });
-            let rows = plan.with(|p| {
+            let rows = plan.with_untracked(|p| {
                 p.items
                     .iter()
                     .zip(&e.uniformity)

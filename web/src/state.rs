@@ -2,6 +2,7 @@
 //! the map library, the results tagged with the revision of the plan they belong to, the editing
 //! choices, and the canvases the views draw on.
 
+use crate::compute;
 use crate::draw::Scale;
 use crate::history::History;
 use crate::paint::{Tool, paint};
@@ -42,6 +43,9 @@ pub struct Canvases {
 pub struct Workbench {
     /// The plan being edited.
     pub plan: RwSignal<Plan>,
+    /// The plan without its painted cells: what the forms show. It changes only when a setting
+    /// does, so a brush stroke re-renders no form.
+    pub settings: Memo<Plan>,
     history: StoredValue<History<Plan>>,
     /// Moves on with every change of the plan or the library; results carry the one they are for.
     pub rev: Memo<u64>,
@@ -122,8 +126,16 @@ impl Workbench {
             });
             Scale::spanning(&[&linear, &simulated])
         });
+        let settings = Memo::new(move |_| {
+            plan.with(|p| Plan {
+                food: Vec::new(),
+                zone: Vec::new(),
+                ..p.clone()
+            })
+        });
         Workbench {
             plan,
+            settings,
             history: StoredValue::new(History::new(HISTORY_STEPS)),
             rev,
             library: RwSignal::new(None),
@@ -229,20 +241,25 @@ impl Workbench {
         self.rect_preview.set(None);
     }
 
+    /// Paints, timing the redraw it causes as an input (when it changes anything).
     fn paint_at(&self, a: usize, b: usize, brush: usize) {
+        compute::mark_input();
         let tool = self.tool.get_untracked();
         let mut p = self.plan.get_untracked();
         if paint(&mut p, tool, a, b, brush) {
             self.plan.set(p);
+        } else {
+            compute::cancel_input();
         }
     }
 
     /// Paints at one cell as its own undoable edit (the keyboard's brush).
     pub fn paint_cell(&self, cell: usize) {
-        let (tool, brush) = (self.tool.get_untracked(), self.brush.get_untracked());
-        self.edit(|p| {
-            paint(p, tool, cell, cell, brush);
-        });
+        let before = self.plan.get_untracked();
+        self.history.update_value(|h| h.record(before));
+        self.paint_at(cell, cell, self.brush.get_untracked());
+        self.plan
+            .with_untracked(|p| self.history.update_value(|h| h.settle(p)));
     }
 
     /// Uses `library` from now on and points the plan at it, as one undoable edit.

@@ -17,7 +17,7 @@ pub fn saved() -> Option<Plan> {
     wire::from_json(&text).ok()
 }
 
-/// Saves the plan (called on every edit).
+/// Saves the plan (once edits pause, and when the page is left).
 pub fn save(plan: &Plan) {
     if let Some(Ok(Some(storage))) = window().map(|w| w.local_storage()) {
         let _ = storage.set_item(AUTOSAVE_KEY, &wire::to_json(plan));

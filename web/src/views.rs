@@ -2,7 +2,7 @@
 //! every change, the slow ones (simulated map, foods over time) when a full evaluation of the
 //! current revision arrives. Each draws only results of the revision it is showing.
 
-use crate::compute::measure;
+use crate::compute::{mark, measure, measure_input};
 use crate::draw::{self, Scale};
 use crate::state::Workbench;
 use leptos::prelude::*;
@@ -15,11 +15,11 @@ const MAP_PX: f64 = 300.0;
 /// Starts the drawing effects.
 pub fn draw_views(wb: Workbench) {
     let c = wb.canvases;
+    // The tray: on every change of the plan, the cursor or the rectangle being dragged.
     Effect::new(move |_| {
         let p = wb.plan.get();
-        let u = wb.unit.get();
-        let now = wb.rev.get();
         let px = draw::cell_px(&p, TRAY_PX);
+        mark("tc-draw-tray-start");
         if let Some(canvas) = c.tray.get() {
             draw::editor(&canvas, &p, px);
             if let Some(i) = wb.cursor.get() {
@@ -29,24 +29,34 @@ pub fn draw_views(wb: Workbench) {
                 draw::selection(&canvas, &p, px, a, b);
             }
         }
+        measure("tc-draw-tray", "tc-draw-tray-start");
+    });
+    // The linear maps and the dwell bars: when the fast result of the current revision arrives
+    // (or the unit or the shared scale changes). An input's redraw ends here.
+    Effect::new(move |_| {
+        let u = wb.unit.get();
+        let scale = wb.scale.get();
         wb.quick.with(|q| {
-            let Some((_, q)) = q.as_ref().filter(|(r, _)| *r == now) else {
+            let Some((_, q)) = q.as_ref().filter(|(r, _)| *r == wb.rev.get_untracked()) else {
                 return;
             };
-            let hp = draw::cell_px(&p, MAP_PX);
-            if let Some(canvas) = c.linear.get() {
-                let scale = wb.scale.get();
-                draw::heatmap(&canvas, &p, &q.linear, hp, scale, u, "linear prediction");
-            }
-            if let Some(canvas) = c.off_band.get() {
-                let title = "distance outside the band, linear prediction";
-                draw::heatmap(&canvas, &p, &q.error_linear, hp, Scale::OffBand, u, title);
-            }
+            mark("tc-draw-maps-start");
+            wb.plan.with_untracked(|p| {
+                let hp = draw::cell_px(p, MAP_PX);
+                if let Some(canvas) = c.linear.get() {
+                    draw::heatmap(&canvas, p, &q.linear, hp, scale, u, "linear prediction");
+                }
+                if let Some(canvas) = c.off_band.get() {
+                    let title = "distance outside the band, linear prediction";
+                    draw::heatmap(&canvas, p, &q.error_linear, hp, Scale::OffBand, u, title);
+                }
+            });
             if let Some(canvas) = c.bars.get() {
                 draw::dwell_bars(&canvas, &q.dwell);
             }
+            measure("tc-draw-maps", "tc-draw-maps-start");
+            measure_input();
         });
-        measure("tc-input-to-frame", "tc-input");
     });
     Effect::new(move |_| {
         let u = wb.unit.get();

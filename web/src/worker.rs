@@ -21,9 +21,20 @@ use wasm_bindgen::JsCast;
 use wasm_bindgen::prelude::*;
 use web_sys::{DedicatedWorkerGlobalScope, MessageEvent, Worker, WorkerOptions, WorkerType};
 
-/// One evaluation's outcome: the plan revision it belongs to, and the evaluation or why there is
-/// none.
-pub type Outcome = (u64, Result<Evaluation, String>);
+/// One evaluation's outcome: the plan revision it belongs to, the evaluation or why there is
+/// none, and the worker's own time for it, ms (None when the page evaluated).
+pub type Outcome = (u64, Result<Evaluation, String>, Option<f64>);
+
+/// Milliseconds from the global's clock (the page's or the worker's).
+fn now_ms() -> f64 {
+    let perf = get(&js_sys::global(), "performance");
+    Reflect::get(&perf, &"now".into())
+        .ok()
+        .and_then(|f| f.dyn_into::<js_sys::Function>().ok())
+        .and_then(|f| f.call0(&perf).ok())
+        .and_then(|v| v.as_f64())
+        .unwrap_or(f64::NAN)
+}
 
 fn get(obj: &JsValue, key: &str) -> JsValue {
     Reflect::get(obj, &JsValue::from_str(key)).unwrap_or(JsValue::UNDEFINED)
@@ -45,7 +56,10 @@ pub fn serve(scope: DedicatedWorkerGlobalScope) {
         let data = ev.data();
         let reply = Object::new();
         set(&reply, "rev", &get(&data, "rev"));
-        match answer(&mut evaluator.borrow_mut(), &data) {
+        let start = now_ms();
+        let answer = answer(&mut evaluator.borrow_mut(), &data);
+        set(&reply, "ms", &JsValue::from_f64(now_ms() - start));
+        match answer {
             Ok(b) => {
                 let b = bytes(&b);
                 set(&reply, "evaluation", &b);
@@ -164,7 +178,7 @@ impl Evaluations {
             let result = local.evaluate(&plan, Options::default());
             drop(s);
             crate::surface::evaluated_in("page");
-            (self.deliver)((rev, result.map_err(|e| e.to_string())));
+            (self.deliver)((rev, result.map_err(|e| e.to_string()), None));
             return;
         }
         s.waiting = Some(Request {
@@ -193,7 +207,7 @@ impl Evaluations {
                 Some(Ok(b)) => bytes(&b).into(),
                 Some(Err(e)) => {
                     drop(s);
-                    (self.deliver)((req.rev, Err(e.to_string())));
+                    (self.deliver)((req.rev, Err(e.to_string()), None));
                     return;
                 }
             };
@@ -222,7 +236,7 @@ impl Evaluations {
             };
             self.state.borrow_mut().in_flight = None;
             crate::surface::evaluated_in("worker");
-            (self.deliver)((rev, result));
+            (self.deliver)((rev, result, get(&data, "ms").as_f64()));
         }
         self.send_waiting();
     }

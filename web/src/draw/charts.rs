@@ -12,8 +12,7 @@ const FAINT: &str = "#ddd";
 
 fn clear(canvas: &HtmlCanvasElement, width: f64, height: f64) -> Option<CanvasRenderingContext2d> {
     let g = ctx(canvas)?;
-    canvas.set_width(width as u32);
-    canvas.set_height(height as u32);
+    super::size(canvas, width, height);
     g.set_fill_style_str("#ffffff");
     g.fill_rect(0.0, 0.0, width, height);
     g.set_font("11px system-ui, sans-serif");

@@ -119,8 +119,7 @@ pub fn heatmap(
     let legend = 34.0;
     let (map_w, map_h) = ((w * cell) as f64, (h * cell) as f64);
     let width = map_w.max(220.0);
-    canvas.set_width(width as u32);
-    canvas.set_height((map_h + legend) as u32);
+    super::size(canvas, width, map_h + legend);
     g.set_fill_style_str("#ffffff");
     g.fill_rect(0.0, 0.0, width, map_h + legend);
     let buf = pixels(plan, values, cell, scale);

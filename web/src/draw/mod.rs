@@ -39,87 +39,109 @@ pub const ZONE_COLOURS: [&str; 8] = [
 /// target list.
 pub const ZONE_GLYPHS: [&str; 8] = ["■", "●", "▲", "◆", "✚", "✖", "▬", "○"];
 
-/// Draws zone `z`'s mark: its shape, centred at (`cx`, `cy`), `s` pixels across.
+/// True for the marks drawn as lines (the cross and the ring); the others are filled.
+fn stroked(z: usize) -> bool {
+    matches!(z % ZONE_GLYPHS.len(), 5 | 7)
+}
+
+/// Adds zone `z`'s mark to the current path: its shape, centred at (`cx`, `cy`), `s` pixels across.
 fn zone_mark(g: &CanvasRenderingContext2d, z: usize, cx: f64, cy: f64, s: f64) {
     let r = s / 2.0;
-    g.begin_path();
     match z % ZONE_GLYPHS.len() {
         0 => g.rect(cx - r, cy - r, s, s),
         1 => {
+            g.move_to(cx + r, cy);
             let _ = g.arc(cx, cy, r, 0.0, std::f64::consts::TAU);
         }
         2 => {
             g.move_to(cx, cy - r);
             g.line_to(cx + r, cy + r);
             g.line_to(cx - r, cy + r);
+            g.close_path();
         }
         3 => {
             g.move_to(cx, cy - r);
             g.line_to(cx + r, cy);
             g.line_to(cx, cy + r);
             g.line_to(cx - r, cy);
+            g.close_path();
         }
         4 => {
-            g.rect(cx - r, cy - r / 3.0, s, s / 3.0);
-            g.rect(cx - r / 3.0, cy - r, s / 3.0, s);
+            g.rect(cx - r, cy - r / 3.0, s, s / 1.5);
+            g.rect(cx - r / 3.0, cy - r, s / 1.5, s);
         }
         5 => {
-            g.set_line_width((s / 4.0).max(1.0));
             g.move_to(cx - r, cy - r);
             g.line_to(cx + r, cy + r);
             g.move_to(cx + r, cy - r);
             g.line_to(cx - r, cy + r);
-            g.stroke();
-            g.set_line_width(1.0);
-            return;
         }
         6 => g.rect(cx - r, cy - r / 3.0, s, s / 1.5),
         _ => {
-            g.set_line_width((s / 5.0).max(1.0));
+            g.move_to(cx + r * 0.8, cy);
             let _ = g.arc(cx, cy, r * 0.8, 0.0, std::f64::consts::TAU);
-            g.stroke();
-            g.set_line_width(1.0);
-            return;
         }
     }
-    g.close_path();
-    g.fill();
 }
 
-/// The editor: food colours, zone marks, grid lines.
+/// Sets the canvas's drawing size, only when it changes (setting it clears and reallocates it).
+pub(crate) fn size(canvas: &HtmlCanvasElement, width: f64, height: f64) {
+    let (w, h) = (width as u32, height as u32);
+    if canvas.width() != w {
+        canvas.set_width(w);
+    }
+    if canvas.height() != h {
+        canvas.set_height(h);
+    }
+}
+
+/// The editor: food colours, zone marks, grid lines; one path per colour.
 pub fn editor(canvas: &HtmlCanvasElement, plan: &Plan, px: f64) {
     let Some(g) = ctx(canvas) else { return };
     let (w, h) = (plan.tray.width, plan.tray.height);
-    canvas.set_width((w as f64 * px) as u32);
-    canvas.set_height((h as f64 * px) as u32);
+    let (wd, ht) = (w as f64 * px, h as f64 * px);
+    size(canvas, wd, ht);
     g.set_fill_style_str("#fbfaf7");
-    g.fill_rect(0.0, 0.0, w as f64 * px, h as f64 * px);
-    for i in 0..w * h {
-        let (x, y) = ((i % w) as f64 * px, (i / w) as f64 * px);
-        if let Some(k) = plan.item_at(i) {
-            g.set_fill_style_str(FOOD_COLOURS[k % FOOD_COLOURS.len()]);
-            g.fill_rect(x, y, px, px);
+    g.fill_rect(0.0, 0.0, wd, ht);
+    let at = |i: usize| ((i % w) as f64 * px, (i / w) as f64 * px);
+    for k in 0..plan.items.len() {
+        g.set_fill_style_str(FOOD_COLOURS[k % FOOD_COLOURS.len()]);
+        g.begin_path();
+        for i in (0..w * h).filter(|&i| plan.item_at(i) == Some(k)) {
+            let (x, y) = at(i);
+            g.rect(x, y, px, px);
         }
-        if let Some(z) = plan.zone_at(i) {
-            let colour = ZONE_COLOURS[z % ZONE_COLOURS.len()];
-            g.set_fill_style_str(colour);
+        g.fill();
+    }
+    let s = (px * 0.5).max(3.0);
+    for z in 0..plan.zones.len() {
+        let colour = ZONE_COLOURS[z % ZONE_COLOURS.len()];
+        g.begin_path();
+        for i in (0..w * h).filter(|&i| plan.zone_at(i) == Some(z)) {
+            let (x, y) = at(i);
+            zone_mark(&g, z, x + px / 2.0, y + px / 2.0, s);
+        }
+        if stroked(z) {
+            g.set_line_width((s / 4.0).max(1.0));
             g.set_stroke_style_str(colour);
-            zone_mark(&g, z, x + px / 2.0, y + px / 2.0, (px * 0.5).max(3.0));
+            g.stroke();
+            g.set_line_width(1.0);
+        } else {
+            g.set_fill_style_str(colour);
+            g.fill();
         }
     }
     g.set_stroke_style_str("rgba(0,0,0,0.08)");
+    g.begin_path();
     for c in 0..=w {
-        g.begin_path();
         g.move_to(c as f64 * px, 0.0);
-        g.line_to(c as f64 * px, h as f64 * px);
-        g.stroke();
+        g.line_to(c as f64 * px, ht);
     }
     for r in 0..=h {
-        g.begin_path();
         g.move_to(0.0, r as f64 * px);
-        g.line_to(w as f64 * px, r as f64 * px);
-        g.stroke();
+        g.line_to(wd, r as f64 * px);
     }
+    g.stroke();
 }
 
 /// The keyboard's cell cursor: a two-tone outline that shows on every food colour.
