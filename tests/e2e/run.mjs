@@ -49,6 +49,7 @@ const same = (a, b) => JSON.stringify(a) === JSON.stringify(b);
 
 // Cell centre in page coordinates.
 async function cellPoint(page, row, col) {
+  await page.locator('#tray').scrollIntoViewIfNeeded();
   const box = await page.locator('#tray').boundingBox();
   const p = await plan(page);
   const px = box.width / p.tray.width;
@@ -400,7 +401,8 @@ await test('planning for the safe minimum: chosen in the workbench, carried in t
   // The lunch-tray demo's pudding may start above its cold-holding limit: no schedule can hold it.
   await page.selectOption('#objective', 'safe-minimum');
   await page.waitForFunction(() => (document.querySelector('#summary .error') || {}).textContent?.includes('Vanilla pudding'), null, { timeout: 30000 });
-  assert(await page.evaluate(() => window.traycast.plan().planning.objective) === 'safe-minimum', 'the refused plan is kept as edited');
+  // The refused plan is kept as edited (published once its evaluation has come back refused).
+  await page.waitForFunction(() => window.traycast.settled() && window.traycast.plan().planning.objective === 'safe-minimum', null, { timeout: 30000 });
   await page.selectOption('select[aria-label="open a demo"]', 'hot-lunch');
   await page.selectOption('#objective', 'safe-minimum');
   const e = await evaluation(page);
@@ -409,6 +411,80 @@ await test('planning for the safe minimum: chosen in the workbench, carried in t
   assert(e.items.every((it) => it.safe), 'every item safe at its judged point');
   assert(await page.locator('#loop-report').isVisible(), 'the loop is reported');
   assert((await page.locator('#uniformity').textContent()).includes('unsteered'), 'uniformity beside the unsteered baseline');
+});
+
+await test('painting lands on the exact cell on a laptop, a 2× screen, a touch tablet, a phone and a large desktop', async () => {
+  const sizes = [
+    { name: 'laptop', viewport: { width: 1280, height: 800 } },
+    { name: 'narrow-2x', viewport: { width: 1100, height: 800 }, deviceScaleFactor: 2 },
+    { name: 'tablet-touch', viewport: { width: 820, height: 1180 }, hasTouch: true, isMobile: true },
+    { name: 'phone-touch', viewport: { width: 390, height: 844 }, deviceScaleFactor: 3, hasTouch: true, isMobile: true },
+    { name: 'desktop', viewport: { width: 1920, height: 1080 } },
+  ];
+  for (const size of sizes) {
+    const context = await browser.newContext(size);
+    const page = await context.newPage();
+    const errors = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await open(page);
+    await page.screenshot({ path: join(ART, `size-${size.name}.png`), fullPage: false });
+    const before = await plan(page);
+    const col = 26; // row 0 is empty in the demo
+    await page.locator('.item .swatch').nth(0).click();
+    const at = await cellPoint(page, 0, col);
+    if (size.hasTouch) await page.touchscreen.tap(at.x, at.y);
+    else { await page.mouse.move(at.x, at.y); await page.mouse.down(); await page.mouse.up(); }
+    const after = await plan(page);
+    const changed = [];
+    after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+    assert(changed.length === 1 && changed[0][0] === 0 && changed[0][1] === col, `${size.name}: painted ${JSON.stringify(changed)}`);
+    const sideways = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    assert(sideways <= 1, `${size.name}: the page scrolls sideways by ${sideways} px`);
+    const ratio = await page.evaluate(() => { const c = document.querySelector('#tray'); return c.width / c.getBoundingClientRect().width; });
+    assert(ratio >= (size.deviceScaleFactor || 1) * 0.99, `${size.name}: the tray keeps ${ratio.toFixed(2)} device pixels per CSS pixel`);
+    await page.screenshot({ path: join(ART, `size-${size.name}-full.png`), fullPage: true });
+    assert(errors.length === 0, `${size.name}: page errors ${errors.join('; ')}`);
+    await context.close();
+  }
+});
+
+await test('an imported library survives a reload; a plan naming a library this browser lacks offers to import it', async ({ page }) => {
+  await open(page);
+  await page.locator('#import-plan').setInputFiles(join(HERE, 'fixtures', 'bench-tray.plan.json'));
+  await page.waitForFunction(() => window.traycast.plan()?.tray.width === 4, null, { timeout: 30000 });
+  await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures', 'measured-maps.csv'));
+  await page.waitForFunction(() => (document.querySelector('#notice') || {}).textContent?.includes('imported'), null, { timeout: 30000 });
+  await page.waitForFunction(() => window.traycast.plan()?.maps.source === 'library', null, { timeout: 30000 });
+  const e1 = await evaluation(page);
+  await page.reload();
+  const e2 = await evaluation(page);
+  assert(same(e1.dwell_s, e2.dwell_s), 'the same library after the reload');
+  // A fresh browser holds no library: the plan's link names one it lacks.
+  const link = await page.evaluate(() => window.traycast.link());
+  const fresh = await browser.newContext({ viewport: { width: 1280, height: 800 } });
+  const other = await fresh.newPage();
+  await other.goto(URL + '#' + link);
+  await other.waitForSelector('#offer-import', { timeout: 30000 });
+  assert((await other.locator('#summary .error').textContent()).includes('not loaded'), 'says the library is missing');
+  await fresh.close();
+});
+
+await test('the compare view sets steered against unsteered, then a pinned band fit against the safe minimum', async ({ page }) => {
+  await open(page);
+  await page.selectOption('select[aria-label="open a demo"]', 'hot-lunch');
+  await evaluation(page);
+  const table = page.locator('#compare-table');
+  await table.waitFor();
+  const text = await table.textContent();
+  assert(text.includes('Unsteered') && text.includes('Steered') && text.includes('heating time'), 'steered against unsteered: ' + text);
+  await page.locator('#pin').click();
+  assert(await page.locator('#compare-mode').inputValue() === 'pinned', 'pinning switches to the pinned comparison');
+  await page.selectOption('#objective', 'safe-minimum');
+  await evaluation(page);
+  await page.waitForFunction(() => document.querySelector('#compare-table')?.textContent.includes('safe-minimum'), null, { timeout: 30000 });
+  const pinned = await table.textContent();
+  assert(pinned.includes('band-fit') && pinned.includes('safe-minimum'), 'A and B named by their objectives: ' + pinned);
+  await page.locator('#compare').screenshot({ path: join(ART, 'compare.png') });
 });
 
 await browser.close();

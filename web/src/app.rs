@@ -4,6 +4,7 @@
 use crate::board::Board;
 use crate::brush::Brush;
 use crate::cards::SafetyCards;
+use crate::compare::Compare;
 use crate::files::Files;
 use crate::foods::{Foods, Targets};
 use crate::header::Header;
@@ -20,7 +21,7 @@ use leptos::prelude::*;
 #[component]
 pub fn App() -> impl IntoView {
     let start = storage::startup();
-    let wb = Workbench::new(start.plan, start.message);
+    let wb = Workbench::new(start.plan, storage::saved_library(), start.message);
     provide_context(wb);
     compute::keep_current(wb);
     views::draw_views(wb);
@@ -47,6 +48,7 @@ pub fn App() -> impl IntoView {
                 <h2>"Outcome"</h2>
                 <Outcome />
                 <PlanningReport />
+                <Compare />
                 <CalibrationQuality />
                 <SafetyCards />
             </section>

@@ -16,13 +16,15 @@ fn cell_at(wb: Workbench, ev: &web_sys::PointerEvent) -> Option<usize> {
     let canvas = wb.canvases.tray.get_untracked()?;
     let rect = canvas.get_bounding_client_rect();
     let shown = (canvas.client_width() as f64, canvas.client_height() as f64);
-    let drawn = (canvas.width() as f64, canvas.height() as f64);
     let at = (
         ev.client_x() as f64 - rect.left() - canvas.client_left() as f64,
         ev.client_y() as f64 - rect.top() - canvas.client_top() as f64,
     );
     wb.plan.with_untracked(|p| {
-        crate::paint::cell_at_point(p, draw::cell_px(p, TRAY_PX), at, shown, drawn)
+        // The drawing's size in units, whatever the device's pixel ratio made its backing store.
+        let px = draw::cell_px(p, TRAY_PX);
+        let drawn = (p.tray.width as f64 * px, p.tray.height as f64 * px);
+        crate::paint::cell_at_point(p, px, at, shown, drawn)
     })
 }
 
@@ -136,6 +138,10 @@ pub fn Board() -> impl IntoView {
             <canvas id="tray" node_ref=c.tray tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
                 on:keydown=move |ev| on_tray_key(wb, ev) on:blur=move |_| wb.cursor.set(None)
                 on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>
+            <p class="hint phone-only">"Phone view: the tray, the maps and the outcome come first, the settings below. A finger paints; pinch to zoom the page."</p>
+            <p class="hint" id="empty-hint" class:hidden=move || wb.plan.with(|p| p.food.iter().any(|&f| f > 0))>
+                "An empty tray: pick a food on the left (or press 1–9) and paint it here with the mouse, a finger or the keyboard; then pick a target band and paint it over the food."
+            </p>
             <p class="hover" id="hover" aria-live="polite">{move || hover_text(wb)}</p>
             <label class="check" title="Keep the linear and simulated maps on the scale they show now, to compare edits">
                 <input id="lock-scale" type="checkbox" prop:checked=move || wb.scale_lock.get().is_some()

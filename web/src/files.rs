@@ -74,9 +74,10 @@ fn import_library(wb: Workbench, text: String) {
     match MapLibrary::parse(&text) {
         Ok(lib) => {
             let (name, configs) = (lib.name.clone(), lib.configs);
-            wb.use_library(lib, |p| p.oven.configs = configs);
+            let kept = wb.use_library(lib, |p| p.oven.configs = configs);
+            let kept = kept.map(|why| format!(" Note: {why}.")).unwrap_or_default();
             wb.notice
-                .set(Some(format!("Map library '{name}' imported.")));
+                .set(Some(format!("Map library '{name}' imported.{kept}")));
         }
         Err(e) => wb
             .notice
@@ -94,9 +95,10 @@ fn calibrate_from(wb: Workbench, text: String, fahrenheit: bool) {
         Ok((table, cal)) => {
             let (name, runs) = (cal.library.name.clone(), cal.report.runs);
             wb.quality.set(Some((cal.report, table)));
-            wb.use_library(cal.library, |_| {});
+            let kept = wb.use_library(cal.library, |_| {});
+            let kept = kept.map(|why| format!(" Note: {why}.")).unwrap_or_default();
             wb.notice.set(Some(format!(
-                "Calibrated '{name}' from {runs} runs on this tray; the quality report is under the outcome."
+                "Calibrated '{name}' from {runs} runs on this tray; the quality report is under the outcome.{kept}"
             )));
         }
         Err(e) => wb.notice.set(Some(format!(

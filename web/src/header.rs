@@ -12,9 +12,13 @@ use traycast_plan::model::Plan;
 pub fn Header(help: RwSignal<bool>) -> impl IntoView {
     let wb = workbench();
     let unit = wb.unit;
-    let blank_w = RwSignal::new(24usize);
-    let blank_h = RwSignal::new(16usize);
-    let blank_mm = RwSignal::new(12.0f64);
+    // A new tray starts from the size of the one shown.
+    let (w0, h0, mm0) = wb
+        .plan
+        .with_untracked(|p| (p.tray.width, p.tray.height, p.tray.cell_mm));
+    let blank_w = RwSignal::new(w0);
+    let blank_h = RwSignal::new(h0);
+    let blank_mm = RwSignal::new(mm0);
     let copied = RwSignal::new(false);
     let open_demo = move |ev: leptos::ev::Event| {
         if let Some(d) = demos::demo(&event_target_value(&ev)) {
@@ -54,7 +58,7 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
                 <option value="">"Open a demo (illustrative)…"</option>
                 {demos::DEMOS.iter().map(|d| view! { <option value=*d>{*d}</option> }).collect_view()}
             </select>
-            <label>"cells"<input id="blank-w" class="short" type="number" min="1" max="128" prop:value=move || blank_w.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_w.set((v as usize).clamp(1, 128)); } />
+            <label title="The size of a new blank tray (the tray shown is described above it)">"New tray: cells"<input id="blank-w" class="short" type="number" min="1" max="128" prop:value=move || blank_w.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_w.set((v as usize).clamp(1, 128)); } />
                 "×"<input id="blank-h" class="short" type="number" min="1" max="128" prop:value=move || blank_h.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_h.set((v as usize).clamp(1, 128)); } />
                 "of"<input id="blank-mm" class="short" type="number" min="1" max="100" prop:value=move || blank_mm.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_mm.set(v.clamp(1.0, 100.0)); } />"mm"</label>
             <button id="new-blank" on:click=new_blank>"New blank tray"</button>

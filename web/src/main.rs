@@ -9,6 +9,7 @@ mod app;
 mod board;
 mod brush;
 mod cards;
+mod compare;
 mod compute;
 mod draw;
 mod files;

@@ -3,6 +3,8 @@
 
 use crate::state::workbench;
 use leptos::prelude::*;
+use traycast_plan::model::MapSource;
+use wasm_bindgen::JsCast;
 
 /// The outcome of the latest evaluation (the previous one stays up while the next is computed).
 #[component]
@@ -11,7 +13,22 @@ pub fn Outcome() -> impl IntoView {
     let summary = move || {
         wb.with_latest(|e| match e {
             None => view! { <p>"Solving…"</p> }.into_any(),
-            Some(Err(msg)) => view! { <p class="error" role="alert">{format!("This plan cannot be solved: {msg}")}</p> }.into_any(),
+            Some(Err(msg)) => {
+                // A plan pointed at a library this browser does not hold: offer to import it.
+                let wanted = wb.plan.with_untracked(|p| match &p.maps {
+                    MapSource::Library { name, .. } if wb.library.with_untracked(|l| l.as_ref().is_none_or(|l| l.name != *name)) => Some(name.clone()),
+                    _ => None,
+                });
+                let pick = move |_| {
+                    if let Some(input) = web_sys::window().and_then(|w| w.document()).and_then(|d| d.get_element_by_id("import-library")).and_then(|e| e.dyn_into::<web_sys::HtmlElement>().ok()) {
+                        input.click();
+                    }
+                };
+                view! {
+                    <p class="error" role="alert">{format!("This plan cannot be solved: {msg}")}</p>
+                    {wanted.map(|name| view! { <button id="offer-import" on:click=pick>{format!("Import map library '{name}'…")}</button> })}
+                }.into_any()
+            }
             Some(Ok(e)) => {
                 let p = wb.plan.get_untracked();
                 let u = wb.unit.get();

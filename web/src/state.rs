@@ -15,6 +15,9 @@ use traycast_plan::evaluate::{Evaluation, Quick};
 use traycast_plan::library::MapLibrary;
 use traycast_plan::model::{MapSource, Plan};
 
+/// Why painting a target on an empty cell does nothing.
+pub const NO_FOOD_HERE: &str = "Targets go on food: these cells hold none. Pick a food (keys 1–9) and paint it here first, then paint the target over it.";
+
 /// Steps back the history keeps.
 const HISTORY_STEPS: usize = 200;
 
@@ -95,10 +98,12 @@ pub struct Workbench {
 }
 
 impl Workbench {
-    /// The state for a plan opened at start-up, with a message for the user if any.
-    pub fn new(plan: Plan, notice: Option<String>) -> Self {
+    /// The state for a plan opened at start-up with the library kept from an earlier visit, and
+    /// a message for the user if any.
+    pub fn new(plan: Plan, library: Option<MapLibrary>, notice: Option<String>) -> Self {
         let plan = RwSignal::new(plan);
         let library_rev = RwSignal::new(0u64);
+        let library = RwSignal::new(library);
         let rev = Memo::new(move |prev: Option<&u64>| {
             plan.track();
             library_rev.track();
@@ -138,7 +143,7 @@ impl Workbench {
             settings,
             history: StoredValue::new(History::new(HISTORY_STEPS)),
             rev,
-            library: RwSignal::new(None),
+            library,
             library_rev,
             quick,
             eval,
@@ -250,6 +255,12 @@ impl Workbench {
             self.plan.set(p);
         } else {
             compute::cancel_input();
+            if matches!(tool, Tool::Zone(_)) && p.item_at(b).is_none() {
+                let why = Some(NO_FOOD_HERE.to_string());
+                if self.notice.with_untracked(|n| *n != why) {
+                    self.notice.set(why);
+                }
+            }
         }
     }
 
@@ -262,8 +273,10 @@ impl Workbench {
             .with_untracked(|p| self.history.update_value(|h| h.settle(p)));
     }
 
-    /// Uses `library` from now on and points the plan at it, as one undoable edit.
-    pub fn use_library(&self, library: MapLibrary, also: impl FnOnce(&mut Plan)) {
+    /// Uses `library` from now on (and keeps it for the next visit) and points the plan at it,
+    /// as one undoable edit. Returns why it could not be kept, if it could not.
+    pub fn use_library(&self, library: MapLibrary, also: impl FnOnce(&mut Plan)) -> Option<String> {
+        let kept = crate::storage::save_library(Some(&library)).err();
         let (name, hash) = (library.name.clone(), library.content_hash());
         self.library.set(Some(library));
         self.library_rev.update(|r| *r += 1);
@@ -274,6 +287,7 @@ impl Workbench {
             };
             also(p);
         });
+        kept
     }
 
     /// Reads the full evaluation when it belongs to the plan as it is now (tracked).

@@ -1,7 +1,7 @@
 //! The charts: dwell seconds per configuration, and each food over time, with axis titles, units
 //! and a legend.
 
-use super::{FOOD_COLOURS, ZONE_COLOURS, ctx};
+use super::{FOOD_COLOURS, ZONE_COLOURS};
 use crate::units::Unit;
 use traycast_plan::evaluate::Evaluation;
 use traycast_plan::model::Plan;
@@ -11,8 +11,7 @@ const INK: &str = "#333";
 const FAINT: &str = "#ddd";
 
 fn clear(canvas: &HtmlCanvasElement, width: f64, height: f64) -> Option<CanvasRenderingContext2d> {
-    let g = ctx(canvas)?;
-    super::size(canvas, width, height);
+    let g = super::prepare(canvas, width, height)?;
     g.set_fill_style_str("#ffffff");
     g.fill_rect(0.0, 0.0, width, height);
     g.set_font("11px system-ui, sans-serif");

@@ -4,7 +4,6 @@
 //! Empty cells are hatched grey; cells inside their band on the off-band map are white with a dot,
 //! so neither is mistaken for the other.
 
-use super::ctx;
 use crate::units::Unit;
 use traycast_plan::model::Plan;
 use wasm_bindgen::Clamped;
@@ -113,21 +112,20 @@ pub fn heatmap(
     unit: Unit,
     label: &str,
 ) {
-    let Some(g) = ctx(canvas) else { return };
     let (w, h) = (plan.tray.width, plan.tray.height);
-    let cell = px.max(1.0) as usize;
     let legend = 34.0;
-    let (map_w, map_h) = ((w * cell) as f64, (h * cell) as f64);
+    let (map_w, map_h) = (w as f64 * px, h as f64 * px);
     let width = map_w.max(220.0);
-    super::size(canvas, width, map_h + legend);
+    let Some(g) = super::prepare(canvas, width, map_h + legend) else {
+        return;
+    };
     g.set_fill_style_str("#ffffff");
     g.fill_rect(0.0, 0.0, width, map_h + legend);
+    // The image goes straight to device pixels (no transform applies to it).
+    let cell = (px * super::pixel_ratio()).round().max(1.0) as usize;
     let buf = pixels(plan, values, cell, scale);
-    if let Ok(img) = ImageData::new_with_u8_clamped_array_and_sh(
-        Clamped(&buf),
-        (w * cell) as u32,
-        (h * cell) as u32,
-    ) {
+    let (iw, ih) = ((w * cell) as u32, (h * cell) as u32);
+    if let Ok(img) = ImageData::new_with_u8_clamped_array_and_sh(Clamped(&buf), iw, ih) {
         let _ = g.put_image_data(&img, 0.0, 0.0);
     }
     // Legend: a strip with its ends and middle, saying where the scale is clipped.

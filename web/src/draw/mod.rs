@@ -84,23 +84,45 @@ fn zone_mark(g: &CanvasRenderingContext2d, z: usize, cx: f64, cy: f64, s: f64) {
     }
 }
 
-/// Sets the canvas's drawing size, only when it changes (setting it clears and reallocates it).
-pub(crate) fn size(canvas: &HtmlCanvasElement, width: f64, height: f64) {
-    let (w, h) = (width as u32, height as u32);
-    if canvas.width() != w {
+/// Device pixels per CSS pixel (1 to 3): canvases keep that many pixels per drawing unit, so
+/// they stay crisp on dense screens.
+pub fn pixel_ratio() -> f64 {
+    web_sys::window()
+        .map_or(1.0, |w| w.device_pixel_ratio())
+        .clamp(1.0, 3.0)
+}
+
+/// Readies a canvas for a drawing `width` × `height` units (CSS pixels at full size): a backing
+/// store of that many device pixels (changed only when it must be: changing it clears and
+/// reallocates), a CSS width of `width` (CSS may shrink it, keeping the aspect), and a transform
+/// so drawing code works in units.
+pub(crate) fn prepare(
+    canvas: &HtmlCanvasElement,
+    width: f64,
+    height: f64,
+) -> Option<CanvasRenderingContext2d> {
+    let ratio = pixel_ratio();
+    let (w, h) = (
+        (width * ratio).round() as u32,
+        (height * ratio).round() as u32,
+    );
+    if canvas.width() != w || canvas.height() != h {
         canvas.set_width(w);
-    }
-    if canvas.height() != h {
         canvas.set_height(h);
+        let _ = canvas.style().set_property("width", &format!("{width}px"));
     }
+    let g = ctx(canvas)?;
+    let _ = g.set_transform(ratio, 0.0, 0.0, ratio, 0.0, 0.0);
+    Some(g)
 }
 
 /// The editor: food colours, zone marks, grid lines; one path per colour.
 pub fn editor(canvas: &HtmlCanvasElement, plan: &Plan, px: f64) {
-    let Some(g) = ctx(canvas) else { return };
     let (w, h) = (plan.tray.width, plan.tray.height);
     let (wd, ht) = (w as f64 * px, h as f64 * px);
-    size(canvas, wd, ht);
+    let Some(g) = prepare(canvas, wd, ht) else {
+        return;
+    };
     g.set_fill_style_str("#fbfaf7");
     g.fill_rect(0.0, 0.0, wd, ht);
     let at = |i: usize| ((i % w) as f64 * px, (i / w) as f64 * px);
