@@ -487,6 +487,25 @@ await test('the compare view sets steered against unsteered, then a pinned band 
   await page.locator('#compare').screenshot({ path: join(ART, 'compare.png') });
 });
 
+await test('the printed report holds the plan, the schedule, the maps, one safety card per item and the cautions', async ({ page }) => {
+  await open(page);
+  const e = await evaluation(page);
+  await page.emulateMedia({ media: 'print' });
+  const printed = page.locator('#printed-plan');
+  assert(await printed.isVisible(), 'the plan part shows on paper');
+  const text = await printed.textContent();
+  const p = await plan(page);
+  assert(p.items.every((it) => text.includes(it.name)) && p.zones.every((z) => text.includes(z.name)), 'foods and targets listed');
+  assert(text.includes('Schedule: ' + e.total_s.toFixed(1) + ' s'), 'the schedule is listed: ' + text.slice(-200));
+  for (const id of ['#map-linear', '#map-simulated', '#cautions', '#safety-cards']) assert(await page.locator(id).isVisible(), `${id} prints`);
+  assert(await page.locator('#safety-cards article.card').count() === p.items.length, 'one card per item');
+  assert(!(await page.locator('section.tools').isVisible()), 'the editing panels do not print');
+  const pdf = await page.pdf({ format: 'A4', printBackground: true });
+  writeFileSync(join(ART, 'report.pdf'), pdf);
+  assert(pdf.length > 20000, `a PDF of ${pdf.length} bytes`);
+  await page.screenshot({ path: join(ART, 'report-print.png'), fullPage: true });
+});
+
 await browser.close();
 const passed = results.filter((r) => r[1]).length;
 const failed = results.length - passed;

@@ -12,6 +12,7 @@ use crate::outcome::Outcome;
 use crate::oven::Oven;
 use crate::planning::{PlanningPanel, PlanningReport};
 use crate::quality::CalibrationQuality;
+use crate::report::PrintedPlan;
 use crate::shortcuts::Shortcuts;
 use crate::state::Workbench;
 use crate::{compute, storage, views};
@@ -30,6 +31,7 @@ pub fn App() -> impl IntoView {
     view! {
         <Header help=help />
         <Shortcuts help=help />
+        <PrintedPlan />
         <main>
             <section class="tools">
                 <Foods />

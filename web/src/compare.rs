@@ -32,6 +32,7 @@ struct Pin {
 
 /// One column of the comparison.
 struct Side {
+    short: &'static str,
     title: String,
     plan: Plan,
     temps: Vec<f64>,
@@ -90,6 +91,7 @@ fn sides(
             };
             Some((
                 Side {
+                    short: "Unsteered",
                     title: format!(
                         "Unsteered: every configuration alike, {:.0} s (linear prediction)",
                         e.baseline.seconds
@@ -100,6 +102,7 @@ fn sides(
                     rows: rows(false),
                 },
                 Side {
+                    short: "Steered",
                     title: format!("Steered: this plan, {:.1} s (linear prediction)", e.total_s),
                     plan: plan.clone(),
                     temps: e.linear.clone(),
@@ -112,6 +115,7 @@ fn sides(
             let pin = pin?;
             Some((
                 Side {
+                    short: "A, pinned",
                     title: format!("A, pinned: {} (coldest point after standing)", pin.label),
                     plan: pin.plan.clone(),
                     temps: pin.eval.course.after_standing.clone(),
@@ -119,6 +123,7 @@ fn sides(
                     rows: verdicts(&pin.plan, &pin.eval),
                 },
                 Side {
+                    short: "B, now",
                     title: format!("B, now: {} (coldest point after standing)", label_of(plan)),
                     plan: plan.clone(),
                     temps: e.course.after_standing.clone(),
@@ -188,12 +193,13 @@ pub fn Compare() -> impl IntoView {
     let table = move || {
         current().map(|(a, b)| {
             let rows = a.rows.iter().zip(&b.rows).map(|((name, va, ua), (_, vb, ub))| view! {
-                <tr><th scope="row">{name.clone()}</th><td>{format!("{va} {}", cv(ua))}</td><td>{format!("{vb} {}", cv(ub))}</td></tr>
+                <tr><th scope="row">{name.clone()}</th><td>{va.clone()}<div class="rule">{cv(ua)}</div></td><td>{vb.clone()}<div class="rule">{cv(ub)}</div></td></tr>
             }).collect_view();
             view! {
                 <table class="compare-table" id="compare-table">
-                    <thead><tr><th></th><th>{a.title.clone()}</th><th>{b.title.clone()}</th></tr></thead>
+                    <thead><tr><th></th><th>{a.short}</th><th>{b.short}</th></tr></thead>
                     <tbody>
+                        <tr><th scope="row">"objective"</th><td>{a.plan.planning.objective.as_str()}</td><td>{b.plan.planning.objective.as_str()}</td></tr>
                         <tr><th scope="row">"heating time"</th><td>{format!("{:.1} s", a.seconds)}</td><td>{format!("{:.1} s", b.seconds)}</td></tr>
                         {rows}
                     </tbody>
@@ -220,8 +226,8 @@ pub fn Compare() -> impl IntoView {
             </div>
             <p class="hint" class:hidden=move || mode.get() != Mode::Pinned || pin.with(Option::is_some)>"Nothing pinned yet: pin an outcome, change the plan, and the two show side by side."</p>
             <div class="maps">
-                <figure><canvas id="compare-a" node_ref=a_ref></canvas></figure>
-                <figure><canvas id="compare-b" node_ref=b_ref></canvas></figure>
+                <figure><figcaption>{move || current().map(|(a, _)| a.title)}</figcaption><canvas id="compare-a" node_ref=a_ref></canvas></figure>
+                <figure><figcaption>{move || current().map(|(_, b)| b.title)}</figcaption><canvas id="compare-b" node_ref=b_ref></canvas></figure>
             </div>
             {table}
             <p class="hint">"CV: coefficient of variation of the rise σ/(T̄ − T₀); spread: warmest − coldest cell; in band: share of targeted cells. Both maps share one temperature scale."</p>

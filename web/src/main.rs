@@ -22,6 +22,7 @@ mod oven;
 mod paint;
 mod planning;
 mod quality;
+mod report;
 mod shortcuts;
 mod simview;
 mod state;
