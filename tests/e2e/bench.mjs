@@ -12,11 +12,11 @@ await page.goto(process.env.TRAYCAST_URL);
 await page.waitForFunction(() => window.traycast && window.traycast.settled() && window.traycast.evaluation() !== null, null, { timeout: 60000 });
 const firstView = await page.evaluate(() => { const e = performance.getEntriesByName('tc-full-frame')[0]; return e.startTime + e.duration; });
 await page.evaluate(() => performance.clearMeasures());
-const box = await page.locator('#tray').boundingBox();
+const box = await page.getByTestId('tray').boundingBox();
 const plan = await page.evaluate(() => window.traycast.plan());
 const px = box.width / plan.tray.width;
 for (let k = 0; k < 200; k++) {
-  await page.locator('.zone .swatch').nth(k % 2).click();
+  await page.getByTestId(`target-swatch-${k % 2}`).click();
   const r = 2 + (k * 5) % (plan.tray.height - 4), c = 2 + (k * 7) % (plan.tray.width - 6);
   await page.mouse.move(box.x + (c + 0.5) * px, box.y + (r + 0.5) * px);
   await page.mouse.down();

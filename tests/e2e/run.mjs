@@ -1,10 +1,12 @@
 // Browser end-to-end tests: the real built workbench, served on 127.0.0.1, driven like a user in
-// Debian's Chromium through playwright-core. Run by `cargo xtask test` (or `cargo xtask e2e`).
+// Debian's Chromium through playwright-core, through the page object in workbench.mjs (locators by
+// data-testid). Run by `cargo xtask test` (or `cargo xtask e2e`).
 import { chromium } from 'playwright-core';
 import { execFileSync } from 'node:child_process';
 import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { Workbench, changedCells } from './workbench.mjs';
 
 const URL = process.env.TRAYCAST_URL;
 const CLI = process.env.TRAYCAST_CLI;
@@ -38,39 +40,23 @@ async function test(name, fn) {
   await context.close();
 }
 function assert(ok, msg) { if (!ok) throw new Error(msg); }
-async function ready(page) {
-  await page.waitForFunction(() => window.traycast && window.traycast.settled() && window.traycast.evaluation() !== null, null, { timeout: 30000 });
-}
-// The full evaluation follows an edit once the strokes pause: wait for it to settle.
-async function evaluation(page) { await ready(page); return page.evaluate(() => window.traycast.evaluation()); }
-async function plan(page) { await ready(page); return page.evaluate(() => window.traycast.plan()); }
-async function open(page, hash = '') { await page.goto(URL + hash); await ready(page); }
+const W = (page) => new Workbench(page, URL);
+// The full evaluation follows an edit once the strokes pause: these wait for it to settle.
+async function ready(page) { await W(page).ready(); }
+async function evaluation(page) { return W(page).evaluation(); }
+async function plan(page) { return W(page).plan(); }
+async function open(page, hash = '') { await W(page).open(hash); }
 const same = (a, b) => JSON.stringify(a) === JSON.stringify(b);
-
-// Cell centre in page coordinates.
-async function cellPoint(page, row, col) {
-  await page.locator('#tray').scrollIntoViewIfNeeded();
-  const box = await page.locator('#tray').boundingBox();
-  const p = await plan(page);
-  const px = box.width / p.tray.width;
-  return { x: box.x + (col + 0.5) * px, y: box.y + (row + 0.5) * px };
-}
-async function drag(page, from, to) {
-  const a = await cellPoint(page, ...from);
-  const b = await cellPoint(page, ...to);
-  await page.mouse.move(a.x, a.y);
-  await page.mouse.down();
-  await page.mouse.move(b.x, b.y, { steps: 8 });
-  await page.mouse.up();
-}
+async function cellPoint(page, row, col) { return W(page).cellPoint(row, col); }
+async function drag(page, from, to) { await W(page).drag(from, to); }
 
 await test('opens on the demo, solved, with dwell bars, numbers and cautions', async ({ page }) => {
   await open(page);
   const e = await evaluation(page);
   assert(e.dwell_s.length === 48 && e.total_s > 0, 'dwells present');
-  assert(await page.locator('#dwell-bars').isVisible(), 'dwell bars visible');
-  assert((await page.locator('#summary .total').textContent()).includes('Heating'), 'summary shown');
-  const cautions = await page.locator('#cautions').textContent();
+  assert(await W(page).dwellBars.isVisible(), 'dwell bars visible');
+  assert((await W(page).summary.locator('.total').textContent()).includes('Heating'), 'summary shown');
+  const cautions = await W(page).cautions.textContent();
   assert(cautions.includes('thermometer') && cautions.includes('local food code'), 'cautions visible');
   await page.screenshot({ path: join(ART, 'workbench-demo.png'), fullPage: true });
 });
@@ -86,7 +72,7 @@ await test('browser and command line agree on the same plan', async ({ page }) =
   cli.dwell_s.forEach((d, j) => assert(d.toFixed(1) === web.dwell_s[j].toFixed(1), `dwell ${j}: cli ${d} web ${web.dwell_s[j]}`));
   cli.items.forEach((it, k) => assert(it.safe === web.items[k].safe && it.min_c.toFixed(1) === web.items[k].min_c.toFixed(1), `verdict ${k}`));
   // One safety card per item, saying what the JSON card says: the verdict, and the kill where one is needed.
-  const cards = page.locator('#safety-cards article.card');
+  const cards = W(page).cards;
   assert(await cards.count() === web.items.length, 'one safety card per item');
   for (const [k, it] of cli.items.entries()) {
     const text = await cards.nth(k).textContent();
@@ -98,12 +84,12 @@ await test('browser and command line agree on the same plan', async ({ page }) =
 await test('painting another target band changes the plan; undo restores it exactly', async ({ page }) => {
   await open(page);
   const before = await evaluation(page);
-  await page.locator('.zone .swatch').nth(1).click(); // the rice target
+  await W(page).targetSwatch(1).click(); // the rice target
   await drag(page, [2, 2], [6, 8]);                   // over the chicken compartment
   const after = await evaluation(page);
   assert(!same(before.dwell_s, after.dwell_s), 'dwell bars changed');
   assert(!same(before.error_linear, after.error_linear), 'error map changed');
-  await page.locator('#undo').click();
+  await W(page).undo.click();
   const undone = await evaluation(page);
   assert(same(before.dwell_s, undone.dwell_s) && same(before.error_linear, undone.error_linear), 'undo restores the numbers');
 });
@@ -111,25 +97,25 @@ await test('painting another target band changes the plan; undo restores it exac
 await test('painting food re-solves on new maps; an unreachable target gets a diagnosis', async ({ page }) => {
   await open(page);
   const before = await evaluation(page);
-  await page.locator('.item .swatch').nth(0).click();
+  await W(page).foodSwatch(0).click();
   await drag(page, [12, 14], [16, 17]);
   const after = await evaluation(page);
   assert(!same(before.dwell_s, after.dwell_s), 'new food re-solves');
   // Make the broccoli target impossible next to the chicken's: 95–100 °C.
-  const min = page.locator('input[data-zone-min="2"]');
-  const max = page.locator('input[data-zone-max="2"]');
+  const min = W(page).targetMin(2);
+  const max = W(page).targetMax(2);
   await max.fill('100'); await max.press('Enter');
   await min.fill('98'); await min.press('Enter');
   await page.waitForTimeout(100);
   const e = await evaluation(page);
   assert(e.zones[2].diagnosis && /physics|setting/.test(e.zones[2].diagnosis), 'diagnosis shown: ' + e.zones[2].diagnosis);
   await page.screenshot({ path: join(ART, 'workbench-painted-with-diagnosis.png'), fullPage: true });
-  assert((await page.locator('#summary').textContent()).includes(e.zones[2].diagnosis.split(': ')[1].slice(0, 30)), 'diagnosis on the page');
+  assert((await W(page).summary.textContent()).includes(e.zones[2].diagnosis.split(': ')[1].slice(0, 30)), 'diagnosis on the page');
 });
 
 await test('a copied link restores the identical plan in a fresh browser', async ({ page }) => {
   await open(page);
-  await page.locator('.item .swatch').nth(2).click();
+  await W(page).foodSwatch(2).click();
   await drag(page, [16, 20], [16, 24]);
   const p = await plan(page);
   const href = await page.evaluate(() => location.href);
@@ -140,7 +126,7 @@ await test('a copied link restores the identical plan in a fresh browser', async
   assert(same(p, await plan(other)), 'identical plan');
   await fresh.close();
   for (const name of ['lunch-tray', 'frozen-portion', 'side-by-side']) {
-    await page.locator('header select').selectOption(name);
+    await W(page).demoPicker.selectOption(name);
     const len = (await page.evaluate(() => location.hash)).length;
     assert(len < 1000, `${name} link is ${len} characters`);
   }
@@ -148,7 +134,7 @@ await test('a copied link restores the identical plan in a fresh browser', async
 
 await test('hostile links show a message and leave the autosaved plan untouched', async ({ page }) => {
   await open(page);
-  await page.locator('.item .swatch').nth(1).click();
+  await W(page).foodSwatch(1).click();
   await drag(page, [16, 1], [16, 3]);
   const saved = await plan(page);
   const good = await page.evaluate(() => window.traycast.link());
@@ -161,7 +147,7 @@ await test('hostile links show a message and leave the autosaved plan untouched'
     await page.goto('about:blank');
     await page.goto(URL + h);
     await ready(page);
-    assert(await page.locator('#notice').isVisible(), 'message for ' + h.slice(0, 20));
+    assert(await W(page).notice.isVisible(), 'message for ' + h.slice(0, 20));
     assert(same(saved, await plan(page)), 'plan unchanged after ' + h.slice(0, 20));
     if (h === bad[bad.length - 2]) await page.screenshot({ path: join(ART, 'workbench-refused-link.png') });
   }
@@ -174,7 +160,7 @@ await test('hostile links show a message and leave the autosaved plan untouched'
 await test('50 random edits survive a reload', async ({ page }) => {
   await open(page);
   for (let k = 0; k < 50; k++) {
-    await page.locator(k % 2 ? '.item .swatch' : '.zone .swatch').nth(k % 3).click();
+    await (k % 2 ? W(page).foodSwatch(0) : W(page).targetSwatch(0)).nth(k % 3).click();
     const r = (k * 7) % 18, c = (k * 11) % 28;
     await drag(page, [r, c], [r, c]);
   }
@@ -200,17 +186,17 @@ await test('after one visit the workbench starts and solves offline', async ({ c
 
 await test('heating maps import through the file picker; a malformed file is refused with its line', async ({ page }) => {
   await open(page);
-  await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures/malformed-maps.csv'));
-  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('refused'));
-  const msg = await page.locator('#notice').textContent();
+  await W(page).importLibrary.setInputFiles(join(HERE, 'fixtures/malformed-maps.csv'));
+  await W(page).waitForText('notice', 'refused');
+  const msg = await W(page).notice.textContent();
   assert(msg.includes('line 8'), 'line number in: ' + msg);
-  await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures/measured-maps.csv'));
-  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('imported'));
+  await W(page).importLibrary.setInputFiles(join(HERE, 'fixtures/measured-maps.csv'));
+  await W(page).waitForText('notice', 'imported');
 });
 
 await test('heating runs calibrate in the workbench like on the command line; a malformed file changes nothing', async ({ page }) => {
   await open(page);
-  await page.selectOption('select[aria-label="open a demo"]', 'side-by-side');
+  await W(page).demoPicker.selectOption('side-by-side');
   await ready(page);
   const layout = join(ART, 'runs-layout.json');
   const runs = join(ART, 'runs.csv');
@@ -220,26 +206,26 @@ await test('heating runs calibrate in the workbench like on the command line; a 
   const bad = join(ART, 'runs-malformed.csv');
   writeFileSync(bad, lines.map((l, k) => (k === 9 ? 'c0,0,4,2,2,NaN' : l)).join('\n'));
   const before = await page.evaluate(() => window.traycast.link());
-  await page.locator('#import-runs').setInputFiles(bad);
-  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('refused'));
-  const msg = await page.locator('#notice').textContent();
+  await W(page).importRuns.setInputFiles(bad);
+  await W(page).waitForText('notice', 'refused');
+  const msg = await W(page).notice.textContent();
   assert(msg.includes('line 10') && msg.includes('not a number'), 'line named in: ' + msg);
   assert((await page.evaluate(() => window.traycast.link())) === before, 'plan unchanged');
   // A °F header is refused until the user ticks the °F box.
   const fahr = join(ART, 'runs-fahrenheit.csv');
   writeFileSync(fahr, lines.map((l, k) => (k === 3 ? 'run,config,time_s,row,col,temp_f' : l)).join('\n'));
-  await page.locator('#notice button').click();
-  await page.locator('#import-runs').setInputFiles(fahr);
-  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('refused'));
-  assert((await page.locator('#notice').textContent()).includes('°F box'), 'asks to confirm °F');
-  await page.locator('#import-runs').setInputFiles(runs);
-  await page.waitForFunction(() => document.querySelector('#notice').textContent.includes('Calibrated'));
+  await W(page).notice.locator('button').click();
+  await W(page).importRuns.setInputFiles(fahr);
+  await W(page).waitForText('notice', 'refused');
+  assert((await W(page).notice.textContent()).includes('°F box'), 'asks to confirm °F');
+  await W(page).importRuns.setInputFiles(runs);
+  await W(page).waitForText('notice', 'Calibrated');
   await ready(page);
-  const report = await page.locator('#quality').textContent();
+  const report = await W(page).quality.textContent();
   assert(report.includes('median r²') && report.includes('notes'), 'quality report shown');
   const web = await evaluation(page);
   web.items.forEach((it, k) => assert(it.spread && it.verdict_on === '95 % bounds', `item ${k} has an interval`));
-  assert((await page.locator('table.items td.spread').count()) === 2 * web.items.length, 'coldest and mean intervals in the table');
+  assert((await W(page).summary.locator('table.items td.spread').count()) === 2 * web.items.length, 'coldest and mean intervals in the table');
   // The command line, given the same runs and layout, builds the same library and the same plan.
   const lib = join(ART, 'runs-library.json');
   execFileSync(CLI, ['calibrate', runs, '--layout', layout, '--out', lib]);
@@ -269,28 +255,28 @@ await test('heating runs calibrate in the workbench like on the command line; a 
   const close = (a, b) => (typeof a === 'number' ? Math.abs(a - b) <= 0.15
     : a && typeof a === 'object' ? Object.keys(a).every((key) => close(a[key], b[key])) : a === b);
   cli.items.forEach((it, k) => assert(close(it.spread, web.items[k].spread), `spread ${k}: ${JSON.stringify(it.spread)} vs ${JSON.stringify(web.items[k].spread)}`));
-  await page.locator('#quality').scrollIntoViewIfNeeded();
+  await W(page).quality.scrollIntoViewIfNeeded();
   await page.screenshot({ path: join(ART, 'workbench-calibration.png'), fullPage: true });
 });
 
 await test('a food named like markup shows literally and runs nothing', async ({ page }) => {
   await open(page);
   await page.evaluate(() => { window.__xss = false; });
-  const name = page.locator('.item input.name').first();
+  const name = W(page).foodName(0);
   await name.fill('<img src=x onerror="window.__xss=true">');
   await name.press('Enter');
   await page.waitForTimeout(200);
-  assert((await page.locator('#summary').textContent()).includes('<img src=x'), 'shown as text');
+  assert((await W(page).summary.textContent()).includes('<img src=x'), 'shown as text');
   assert(!(await page.evaluate(() => window.__xss)), 'no script ran');
-  assert((await page.locator('#summary img').count()) === 0, 'no element created');
+  assert((await W(page).summary.locator('img').count()) === 0, 'no element created');
 });
 
 await test('°C/°F toggle converts displayed values by F = C·9/5 + 32', async ({ page }) => {
   await open(page);
   const e = await evaluation(page);
   const c = e.items[0].min_c;
-  await page.locator('#unit').click();
-  const cell = await page.locator('table.items tbody tr').first().locator('td').nth(1).textContent();
+  await W(page).unit.click();
+  const cell = await W(page).summary.locator('table.items tbody tr').first().locator('td').nth(1).textContent();
   const f = parseFloat(cell);
   assert(cell.includes('°F') && Math.abs(f - (c * 9 / 5 + 32)) < 0.06, `${cell} vs ${c} °C`);
   await page.screenshot({ path: join(ART, 'workbench-fahrenheit.png'), fullPage: true });
@@ -302,12 +288,11 @@ await test('pointing lands on the cell under the pointer at laptop and narrow wi
     await page.setViewportSize({ width: w, height: h });
     await open(page);
     const before = await plan(page);
-    await page.locator('.item .swatch').nth(0).click();
+    await W(page).foodSwatch(0).click();
     await drag(page, [0, col], [0, col]);
     const after = await plan(page);
     // The food grid is one string per row.
-    const changed = [];
-    after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+    const changed = changedCells(before, after);
     assert(changed.length === 1 && changed[0][0] === 0 && changed[0][1] === col, `${w}×${h}: painted ${JSON.stringify(changed)}`);
   }
 });
@@ -315,13 +300,12 @@ await test('pointing lands on the cell under the pointer at laptop and narrow wi
 await test('the keyboard paints: arrows move a cell cursor on the focused tray, Space paints there', async ({ page }) => {
   await open(page);
   const before = await plan(page);
-  await page.locator('.item .swatch').nth(0).click();
-  await page.locator('#tray').focus();
+  await W(page).foodSwatch(0).click();
+  await W(page).tray.focus();
   for (let k = 0; k < 26; k++) await page.keyboard.press('ArrowRight'); // the first press shows the cursor at row 0, col 0
   await page.keyboard.press('Space');
   const after = await plan(page);
-  const changed = [];
-  after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+  const changed = changedCells(before, after);
   assert(changed.length === 1 && changed[0][0] === 0 && changed[0][1] === 25, `painted ${JSON.stringify(changed)}`);
   await page.keyboard.press('Control+z');
   assert(same((await plan(page)).food, before.food), 'undo restores the food grid');
@@ -330,12 +314,12 @@ await test('the keyboard paints: arrows move a cell cursor on the focused tray, 
 await test('the rectangle tool outlines the rectangle while dragging, and paints it when let go', async ({ page }) => {
   await open(page);
   const before = await plan(page);
-  await page.locator('.item .swatch').nth(0).click();
-  await page.getByRole('button', { name: 'Rectangle' }).click();
-  await page.locator('#tray').scrollIntoViewIfNeeded(); // the tool button sits lower on the page
+  await W(page).foodSwatch(0).click();
+  await W(page).rectangle.click();
+  await W(page).tray.scrollIntoViewIfNeeded(); // the tool button sits lower on the page
   const a = await cellPoint(page, 0, 12); // row 0 is empty in the demo
   const b = await cellPoint(page, 0, 15);
-  const drawn = () => page.evaluate(() => document.querySelector('#tray').toDataURL());
+  const drawn = () => W(page).pixels('tray');
   await page.mouse.move(a.x, a.y);
   await page.mouse.down();
   const pressed = await drawn();
@@ -345,24 +329,23 @@ await test('the rectangle tool outlines the rectangle while dragging, and paints
   assert(same((await plan(page)).food, before.food), 'nothing painted before the drag ends');
   await page.mouse.up();
   const after = await plan(page);
-  const changed = [];
-  after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+  const changed = changedCells(before, after);
   assert(changed.length === 4 && changed.every(([r, c]) => r === 0 && c >= 12 && c <= 15), `painted ${JSON.stringify(changed)}`);
 });
 
 await test('the simulated map shows the point of each cell the user picks, and says which', async ({ page }) => {
   await open(page);
-  const caption = () => page.locator('#map-simulated').locator('xpath=..').locator('figcaption').textContent();
-  const pixels = () => page.evaluate(() => document.querySelector('#map-simulated').toDataURL());
+  const caption = () => W(page).simulatedMap.locator('xpath=..').locator('figcaption').textContent();
+  const pixels = () => W(page).pixels('map-simulated');
   assert(/coldest point/.test(await caption()), 'coldest point by default: ' + (await caption()));
   const coldest = await pixels();
-  await page.selectOption('#sim-view', 'surface');
+  await W(page).simView.selectOption('surface');
   await page.waitForTimeout(200);
   assert(/surface/.test(await caption()), 'says surface: ' + (await caption()));
   assert((await pixels()) !== coldest, 'the surface map differs from the coldest-point map');
-  await page.selectOption('#sim-view', 'depth');
-  await page.locator('#sim-depth').fill('4');
-  await page.locator('#sim-depth').press('Enter');
+  await W(page).simView.selectOption('depth');
+  await W(page).simDepth.fill('4');
+  await W(page).simDepth.press('Enter');
   await page.waitForTimeout(200);
   assert(/4 mm below the top/.test(await caption()), 'says the depth: ' + (await caption()));
 });
@@ -371,7 +354,7 @@ await test('the full evaluation runs in a worker; painting gets its fast views a
   await open(page);
   assert(await page.evaluate(() => window.traycast.evaluatedIn()) === 'worker', 'evaluated in the worker');
   const before = await evaluation(page);
-  await page.locator('.zone .swatch').nth(1).click();
+  await W(page).targetSwatch(1).click();
   await drag(page, [2, 2], [6, 8]);
   const after = await evaluation(page);
   assert(!same(before.dwell_s, after.dwell_s), 'the worker answered the new plan');
@@ -380,37 +363,37 @@ await test('the full evaluation runs in a worker; painting gets its fast views a
 
 await test('? lists the shortcuts; keys typed into a field stay text', async ({ page }) => {
   await open(page);
-  const overlay = page.locator('#shortcuts');
+  const overlay = W(page).shortcuts;
   assert(!(await overlay.isVisible()), 'hidden at first');
   await page.locator('body').press('?');
   assert(await overlay.isVisible(), 'shown on ?');
   assert((await overlay.textContent()).includes('rectangle mode'), 'lists the rectangle key');
   await page.keyboard.press('Escape');
   assert(!(await overlay.isVisible()), 'closed on Escape');
-  const rect = page.getByRole('button', { name: 'Rectangle' });
-  await page.locator('.plan-name').click();
+  const rect = W(page).rectangle;
+  await W(page).planName.click();
   await page.keyboard.type('r?');
   assert(!(await overlay.isVisible()), 'typing ? in a field opens nothing');
   assert(await rect.getAttribute('aria-pressed') === 'false', 'typing r in a field leaves the tool alone');
-  await page.locator('#show-shortcuts').click();
+  await W(page).showShortcuts.click();
   assert(await overlay.isVisible(), 'the ? button shows the list too');
 });
 
 await test('planning for the safe minimum: chosen in the workbench, carried in the plan, the loop reported; a start already too warm is refused by name', async ({ page }) => {
   await open(page);
   // The lunch-tray demo's pudding may start above its cold-holding limit: no schedule can hold it.
-  await page.selectOption('#objective', 'safe-minimum');
-  await page.waitForFunction(() => (document.querySelector('#summary .error') || {}).textContent?.includes('Vanilla pudding'), null, { timeout: 30000 });
+  await W(page).objective.selectOption('safe-minimum');
+  await W(page).waitForText('summary', 'Vanilla pudding');
   // The refused plan is kept as edited (published once its evaluation has come back refused).
   await page.waitForFunction(() => window.traycast.settled() && window.traycast.plan().planning.objective === 'safe-minimum', null, { timeout: 30000 });
-  await page.selectOption('select[aria-label="open a demo"]', 'hot-lunch');
-  await page.selectOption('#objective', 'safe-minimum');
+  await W(page).demoPicker.selectOption('hot-lunch');
+  await W(page).objective.selectOption('safe-minimum');
   const e = await evaluation(page);
   assert(e.planning.objective === 'safe-minimum', 'objective in the summary: ' + JSON.stringify(e.planning));
   assert((await plan(page)).planning.objective === 'safe-minimum', 'objective in the plan');
   assert(e.items.every((it) => it.safe), 'every item safe at its judged point');
-  assert(await page.locator('#loop-report').isVisible(), 'the loop is reported');
-  assert((await page.locator('#uniformity').textContent()).includes('unsteered'), 'uniformity beside the unsteered baseline');
+  assert(await W(page).loopReport.isVisible(), 'the loop is reported');
+  assert((await W(page).uniformity.textContent()).includes('unsteered'), 'uniformity beside the unsteered baseline');
 });
 
 await test('painting lands on the exact cell on a laptop, a 2× screen, a touch tablet, a phone and a large desktop', async () => {
@@ -430,17 +413,16 @@ await test('painting lands on the exact cell on a laptop, a 2× screen, a touch 
     await page.screenshot({ path: join(ART, `size-${size.name}.png`), fullPage: false });
     const before = await plan(page);
     const col = 26; // row 0 is empty in the demo
-    await page.locator('.item .swatch').nth(0).click();
+    await W(page).foodSwatch(0).click();
     const at = await cellPoint(page, 0, col);
     if (size.hasTouch) await page.touchscreen.tap(at.x, at.y);
     else { await page.mouse.move(at.x, at.y); await page.mouse.down(); await page.mouse.up(); }
     const after = await plan(page);
-    const changed = [];
-    after.food.forEach((row, r) => [...row].forEach((ch, c) => { if (ch !== before.food[r][c]) changed.push([r, c]); }));
+    const changed = changedCells(before, after);
     assert(changed.length === 1 && changed[0][0] === 0 && changed[0][1] === col, `${size.name}: painted ${JSON.stringify(changed)}`);
     const sideways = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
     assert(sideways <= 1, `${size.name}: the page scrolls sideways by ${sideways} px`);
-    const ratio = await page.evaluate(() => { const c = document.querySelector('#tray'); return c.width / c.getBoundingClientRect().width; });
+    const ratio = await page.evaluate(() => { const c = document.querySelector('[data-testid="tray"]'); return c.width / c.getBoundingClientRect().width; });
     assert(ratio >= (size.deviceScaleFactor || 1) * 0.99, `${size.name}: the tray keeps ${ratio.toFixed(2)} device pixels per CSS pixel`);
     await page.screenshot({ path: join(ART, `size-${size.name}-full.png`), fullPage: true });
     assert(errors.length === 0, `${size.name}: page errors ${errors.join('; ')}`);
@@ -450,10 +432,10 @@ await test('painting lands on the exact cell on a laptop, a 2× screen, a touch 
 
 await test('an imported library survives a reload; a plan naming a library this browser lacks offers to import it', async ({ page }) => {
   await open(page);
-  await page.locator('#import-plan').setInputFiles(join(HERE, 'fixtures', 'bench-tray.plan.json'));
+  await W(page).importPlan.setInputFiles(join(HERE, 'fixtures', 'bench-tray.plan.json'));
   await page.waitForFunction(() => window.traycast.plan()?.tray.width === 4, null, { timeout: 30000 });
-  await page.locator('#import-library').setInputFiles(join(HERE, 'fixtures', 'measured-maps.csv'));
-  await page.waitForFunction(() => (document.querySelector('#notice') || {}).textContent?.includes('imported'), null, { timeout: 30000 });
+  await W(page).importLibrary.setInputFiles(join(HERE, 'fixtures', 'measured-maps.csv'));
+  await W(page).waitForText('notice', 'imported');
   await page.waitForFunction(() => window.traycast.plan()?.maps.source === 'library', null, { timeout: 30000 });
   const e1 = await evaluation(page);
   await page.reload();
@@ -465,41 +447,41 @@ await test('an imported library survives a reload; a plan naming a library this 
   const other = await fresh.newPage();
   await other.goto(URL + '#' + link);
   await other.waitForSelector('#offer-import', { timeout: 30000 });
-  assert((await other.locator('#summary .error').textContent()).includes('not loaded'), 'says the library is missing');
+  assert((await W(other).summary.locator('.error').textContent()).includes('not loaded'), 'says the library is missing');
   await fresh.close();
 });
 
 await test('the compare view sets steered against unsteered, then a pinned band fit against the safe minimum', async ({ page }) => {
   await open(page);
-  await page.selectOption('select[aria-label="open a demo"]', 'hot-lunch');
+  await W(page).demoPicker.selectOption('hot-lunch');
   await evaluation(page);
-  const table = page.locator('#compare-table');
+  const table = W(page).compareTable;
   await table.waitFor();
   const text = await table.textContent();
   assert(text.includes('Unsteered') && text.includes('Steered') && text.includes('heating time'), 'steered against unsteered: ' + text);
-  await page.locator('#pin').click();
-  assert(await page.locator('#compare-mode').inputValue() === 'pinned', 'pinning switches to the pinned comparison');
-  await page.selectOption('#objective', 'safe-minimum');
+  await W(page).pin.click();
+  assert(await W(page).compareMode.inputValue() === 'pinned', 'pinning switches to the pinned comparison');
+  await W(page).objective.selectOption('safe-minimum');
   await evaluation(page);
-  await page.waitForFunction(() => document.querySelector('#compare-table')?.textContent.includes('safe-minimum'), null, { timeout: 30000 });
+  await W(page).waitForText('compare-table', 'safe-minimum');
   const pinned = await table.textContent();
   assert(pinned.includes('band-fit') && pinned.includes('safe-minimum'), 'A and B named by their objectives: ' + pinned);
-  await page.locator('#compare').screenshot({ path: join(ART, 'compare.png') });
+  await W(page).compare.screenshot({ path: join(ART, 'compare.png') });
 });
 
 await test('the printed report holds the plan, the schedule, the maps, one safety card per item and the cautions', async ({ page }) => {
   await open(page);
   const e = await evaluation(page);
   await page.emulateMedia({ media: 'print' });
-  const printed = page.locator('#printed-plan');
+  const printed = W(page).printedPlan;
   assert(await printed.isVisible(), 'the plan part shows on paper');
   const text = await printed.textContent();
   const p = await plan(page);
   assert(p.items.every((it) => text.includes(it.name)) && p.zones.every((z) => text.includes(z.name)), 'foods and targets listed');
   assert(text.includes('Schedule: ' + e.total_s.toFixed(1) + ' s'), 'the schedule is listed: ' + text.slice(-200));
   for (const id of ['#map-linear', '#map-simulated', '#cautions', '#safety-cards']) assert(await page.locator(id).isVisible(), `${id} prints`);
-  assert(await page.locator('#safety-cards article.card').count() === p.items.length, 'one card per item');
-  assert(!(await page.locator('section.tools').isVisible()), 'the editing panels do not print');
+  assert(await W(page).cards.count() === p.items.length, 'one card per item');
+  assert(!(await W(page).tools.isVisible()), 'the editing panels do not print');
   const pdf = await page.pdf({ format: 'A4', printBackground: true });
   writeFileSync(join(ART, 'report.pdf'), pdf);
   assert(pdf.length > 20000, `a PDF of ${pdf.length} bytes`);

@@ -33,7 +33,7 @@ pub fn App() -> impl IntoView {
         <Shortcuts help=help />
         <PrintedPlan />
         <main>
-            <section class="tools">
+            <section class="tools" data-testid="tools">
                 <Foods />
                 <Targets />
                 <Brush />
@@ -44,7 +44,7 @@ pub fn App() -> impl IntoView {
             <Board />
             <section class="results">
                 <h2>"Dwell per configuration"</h2>
-                <canvas id="dwell-bars" node_ref=c.bars></canvas>
+                <canvas id="dwell-bars" data-testid="dwell-bars" node_ref=c.bars></canvas>
                 <h2>"Foods over time"</h2>
                 <canvas id="time-course" node_ref=c.course></canvas>
                 <h2>"Outcome"</h2>

@@ -135,23 +135,23 @@ pub fn Board() -> impl IntoView {
     view! {
         <section class="board">
             <h2>"Tray " <small>{move || wb.settings.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
-            <canvas id="tray" node_ref=c.tray tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
+            <canvas id="tray" data-testid="tray" node_ref=c.tray tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
                 on:keydown=move |ev| on_tray_key(wb, ev) on:blur=move |_| wb.cursor.set(None)
                 on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>
             <p class="hint phone-only">"Phone view: the tray, the maps and the outcome come first, the settings below. A finger paints; pinch to zoom the page."</p>
-            <p class="hint" id="empty-hint" class:hidden=move || wb.plan.with(|p| p.food.iter().any(|&f| f > 0))>
+            <p class="hint" id="empty-hint" data-testid="empty-hint" class:hidden=move || wb.plan.with(|p| p.food.iter().any(|&f| f > 0))>
                 "An empty tray: pick a food on the left (or press 1–9) and paint it here with the mouse, a finger or the keyboard; then pick a target band and paint it over the food."
             </p>
-            <p class="hover" id="hover" aria-live="polite">{move || hover_text(wb)}</p>
+            <p class="hover" id="hover" data-testid="hover" aria-live="polite">{move || hover_text(wb)}</p>
             <label class="check" title="Keep the linear and simulated maps on the scale they show now, to compare edits">
-                <input id="lock-scale" type="checkbox" prop:checked=move || wb.scale_lock.get().is_some()
+                <input id="lock-scale" data-testid="lock-scale" type="checkbox" prop:checked=move || wb.scale_lock.get().is_some()
                     on:change=move |ev| wb.scale_lock.set(event_target_checked(&ev).then(|| wb.scale.get_untracked())) />
                 "Lock the temperature scale of the two temperature maps"
             </label>
             <div class="maps">
-                <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" node_ref=c.linear></canvas><button class="small" on:click=png(c.linear, "linear.png")>"PNG"</button></figure>
-                <figure><figcaption>{move || format!("Simulated {} of each cell, after standing ({})", sim_view.get().caption(sim_depth.get()), unit.get().symbol())}</figcaption><SimViewPicker view=sim_view depth_mm=sim_depth /><canvas id="map-simulated" node_ref=c.simulated></canvas><button class="small" on:click=png(c.simulated, "simulated.png")>"PNG"</button></figure>
-                <figure><figcaption>"Off band (linear prediction): blue too cold, red too hot, white dot in band, hatched no target"</figcaption><canvas id="map-error" node_ref=c.off_band></canvas><button class="small" on:click=png(c.off_band, "error.png")>"PNG"</button></figure>
+                <figure><figcaption>{move || format!("Linear prediction ({})", unit.get().symbol())}</figcaption><canvas id="map-linear" data-testid="map-linear" node_ref=c.linear></canvas><button class="small" on:click=png(c.linear, "linear.png")>"PNG"</button></figure>
+                <figure><figcaption>{move || format!("Simulated {} of each cell, after standing ({})", sim_view.get().caption(sim_depth.get()), unit.get().symbol())}</figcaption><SimViewPicker view=sim_view depth_mm=sim_depth /><canvas id="map-simulated" data-testid="map-simulated" node_ref=c.simulated></canvas><button class="small" on:click=png(c.simulated, "simulated.png")>"PNG"</button></figure>
+                <figure><figcaption>"Off band (linear prediction): blue too cold, red too hot, white dot in band, hatched no target"</figcaption><canvas id="map-error" data-testid="map-off-band" node_ref=c.off_band></canvas><button class="small" on:click=png(c.off_band, "error.png")>"PNG"</button></figure>
             </div>
         </section>
     }

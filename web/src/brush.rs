@@ -18,13 +18,13 @@ pub fn Brush() -> impl IntoView {
         <div class="row">
             <button class:active=move || tool.get() == Tool::EraseFood aria-pressed=move || (tool.get() == Tool::EraseFood).to_string() on:click=move |_| tool.set(Tool::EraseFood) title="key Backspace">"Erase food"</button>
             <button class:active=move || tool.get() == Tool::EraseZone aria-pressed=move || (tool.get() == Tool::EraseZone).to_string() on:click=move |_| tool.set(Tool::EraseZone)>"Erase target"</button>
-            <button class:active=move || rect.get() aria-pressed=move || rect.get().to_string() on:click=move |_| rect.update(|r| *r = !*r) title="key R">"Rectangle"</button>
+            <button data-testid="tool-rectangle" class:active=move || rect.get() aria-pressed=move || rect.get().to_string() on:click=move |_| rect.update(|r| *r = !*r) title="key R">"Rectangle"</button>
         </div>
         <label title="keys , and . make it smaller and larger">"Size " {move || brush.get()}
             <input type="range" min="1" max=BRUSH_MAX aria-label="brush size (cells)" prop:value=move || brush.get().to_string() on:input=move |ev| if let Some(v) = num(&ev) { brush.set((v as usize).clamp(1, BRUSH_MAX)); } /></label>
         <div class="row">
-            <button id="undo" on:click=move |_| wb.undo() title="Ctrl+Z">"Undo"</button>
-            <button id="redo" on:click=move |_| wb.redo() title="Ctrl+Y">"Redo"</button>
+            <button id="undo" data-testid="undo" on:click=move |_| wb.undo() title="Ctrl+Z">"Undo"</button>
+            <button id="redo" data-testid="redo" on:click=move |_| wb.redo() title="Ctrl+Y">"Redo"</button>
         </div>
     }
 }

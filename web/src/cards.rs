@@ -30,7 +30,7 @@ pub fn SafetyCards() -> impl IntoView {
         })
     };
     view! {
-        <div class="safety" id="safety-cards">
+        <div class="safety" id="safety-cards" data-testid="safety-cards">
             <h2>"Safety cards"</h2>
             <div class="cards">
                 {move || cards().into_iter().map(|(safe, lines)| {
@@ -44,7 +44,7 @@ pub fn SafetyCards() -> impl IntoView {
                     }
                 }).collect_view()}
             </div>
-            <aside class="cautions" id="cautions">
+            <aside class="cautions" id="cautions" data-testid="cautions">
                 <h3>"Before you serve"</h3>
                 <ul>{CAUTIONS.iter().map(|c| view! { <li>{*c}</li> }).collect_view()}</ul>
             </aside>

@@ -196,7 +196,7 @@ pub fn Compare() -> impl IntoView {
                 <tr><th scope="row">{name.clone()}</th><td>{va.clone()}<div class="rule">{cv(ua)}</div></td><td>{vb.clone()}<div class="rule">{cv(ub)}</div></td></tr>
             }).collect_view();
             view! {
-                <table class="compare-table" id="compare-table">
+                <table class="compare-table" id="compare-table" data-testid="compare-table">
                     <thead><tr><th></th><th>{a.short}</th><th>{b.short}</th></tr></thead>
                     <tbody>
                         <tr><th scope="row">"objective"</th><td>{a.plan.planning.objective.as_str()}</td><td>{b.plan.planning.objective.as_str()}</td></tr>
@@ -215,14 +215,14 @@ pub fn Compare() -> impl IntoView {
         })
     };
     view! {
-        <section class="compare" id="compare">
+        <section class="compare" id="compare" data-testid="compare">
             <h2>"Compare"</h2>
             <div class="row">
-                <select id="compare-mode" aria-label="what to compare" on:change=on_mode prop:value=move || if mode.get() == Mode::Pinned { "pinned" } else { "unsteered" }>
+                <select id="compare-mode" data-testid="compare-mode" aria-label="what to compare" on:change=on_mode prop:value=move || if mode.get() == Mode::Pinned { "pinned" } else { "unsteered" }>
                     <option value="unsteered">"Steered against unsteered"</option>
                     <option value="pinned">"Pinned outcome A against now (B)"</option>
                 </select>
-                <button id="pin" on:click=pin_now title="Keep this outcome as A; change the objective, oven or library, and compare">"Pin this outcome as A"</button>
+                <button id="pin" data-testid="pin" on:click=pin_now title="Keep this outcome as A; change the objective, oven or library, and compare">"Pin this outcome as A"</button>
             </div>
             <p class="hint" class:hidden=move || mode.get() != Mode::Pinned || pin.with(Option::is_some)>"Nothing pinned yet: pin an outcome, change the plan, and the two show side by side."</p>
             <div class="maps">

@@ -160,11 +160,11 @@ pub fn Files() -> impl IntoView {
     };
     view! {
         <h2>"Files"</h2>
-        <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_library /></label>
-        <label class="file">"Calibrate from heating runs (CSV)"<input id="import-runs" type="file" accept=".csv,text/csv" on:change=on_runs /></label>
+        <label class="file">"Import heating maps (CSV/JSON)"<input id="import-library" data-testid="import-library" type="file" accept=".csv,.json,text/csv,application/json" on:change=on_library /></label>
+        <label class="file">"Calibrate from heating runs (CSV)"<input id="import-runs" data-testid="import-runs" type="file" accept=".csv,text/csv" on:change=on_runs /></label>
         <label class="check"><input id="runs-fahrenheit" type="checkbox" prop:checked=move || wb.runs_in_f.get() on:change=move |ev| wb.runs_in_f.set(event_target_checked(&ev)) />"runs are in °F"</label>
         <button on:click=move |_| invent_runs(wb)>"Invent bench runs for this tray (illustrative)"</button>
-        <label class="file">"Open plan file"<input id="import-plan" type="file" accept=".json,application/json" on:change=on_plan /></label>
+        <label class="file">"Open plan file"<input id="import-plan" data-testid="import-plan" type="file" accept=".json,application/json" on:change=on_plan /></label>
         <div class="row">
             <button on:click=save_plan>"Save plan"</button>
             <button on:click=move |_| export_schedule(wb)>"Export schedule"</button>

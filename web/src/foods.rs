@@ -34,8 +34,8 @@ pub fn Foods() -> impl IntoView {
         };
         view! {
             <div class="row item" class:active=move || tool.get() == Tool::Food(k)>
-                <button class="swatch" style=format!("background:{colour}") title="Paint this food (key 1–9)" aria-label=format!("paint food {}", k + 1) aria-pressed=move || (tool.get() == Tool::Food(k)).to_string() on:click=move |_| tool.set(Tool::Food(k))></button>
-                <input class="name" aria-label="food item name" prop:value=show(|i| i.name.clone())
+                <button class="swatch" data-testid=format!("food-swatch-{k}") style=format!("background:{colour}") title="Paint this food (key 1–9)" aria-label=format!("paint food {}", k + 1) aria-pressed=move || (tool.get() == Tool::Food(k)).to_string() on:click=move |_| tool.set(Tool::Food(k))></button>
+                <input class="name" data-testid=format!("food-name-{k}") aria-label="food item name" prop:value=show(|i| i.name.clone())
                     on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |i| i.name = v)); } />
                 <select aria-label="catalogue food" on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |i| i.food = v)); }>
                     {CATALOGUE.iter().map(|f| { let id = f.id; view! { <option value=id selected=move || wb.settings.with(|p| p.items.get(k).is_some_and(|i| i.food == id))>{f.name}</option> } }).collect_view()}
@@ -98,12 +98,12 @@ pub fn Targets() -> impl IntoView {
             move |ev: &leptos::ev::Event| num(ev).map(|v| unit.get_untracked().to_celsius(v));
         view! {
             <div class="row zone" class:active=move || tool.get() == Tool::Zone(k)>
-                <button class="swatch" style=format!("background:{colour};color:#fff") title="Paint this target" aria-label=format!("paint target {}", k + 1) aria-pressed=move || (tool.get() == Tool::Zone(k)).to_string() on:click=move |_| tool.set(Tool::Zone(k))>{draw::ZONE_GLYPHS[k % draw::ZONE_GLYPHS.len()]}</button>
+                <button class="swatch" data-testid=format!("target-swatch-{k}") style=format!("background:{colour};color:#fff") title="Paint this target" aria-label=format!("paint target {}", k + 1) aria-pressed=move || (tool.get() == Tool::Zone(k)).to_string() on:click=move |_| tool.set(Tool::Zone(k))>{draw::ZONE_GLYPHS[k % draw::ZONE_GLYPHS.len()]}</button>
                 <input class="name" aria-label="zone name" prop:value=move || wb.settings.with(|p| p.zones.get(k).map(|z| z.name.clone()).unwrap_or_default())
                     on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |z| z.name = v)); } />
-                <label>"min"<input class="short" type="number" data-zone-min=k prop:value=temp(|z| z.min_c)
+                <label>"min"<input class="short" type="number" data-zone-min=k data-testid=format!("target-min-{k}") prop:value=temp(|z| z.min_c)
                     on:change=move |ev| if let Some(c) = celsius(&ev) { set(Box::new(move |z| { z.min_c = c; z.max_c = z.max_c.max(c); })); } /></label>
-                <label>"max"<input class="short" type="number" data-zone-max=k prop:value=temp(|z| z.max_c)
+                <label>"max"<input class="short" type="number" data-zone-max=k data-testid=format!("target-max-{k}") prop:value=temp(|z| z.max_c)
                     on:change=move |ev| if let Some(c) = celsius(&ev) { set(Box::new(move |z| { z.max_c = c; z.min_c = z.min_c.min(c); })); } /></label>
                 <label>"weight"<input class="short" type="number" step="0.5" prop:value=move || wb.settings.with(|p| p.zones.get(k).map(|z| z.weight.to_string()).unwrap_or_default())
                     on:change=move |ev| if let Some(v) = num(&ev) { set(Box::new(move |z| z.weight = v.clamp(0.001, 1000.0))); } /></label>

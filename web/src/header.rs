@@ -52,9 +52,9 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
     view! {
         <header>
             <h1>"Traycast"</h1>
-            <input class="plan-name" aria-label="plan name" prop:value=move || wb.settings.with(|p| p.name.clone())
+            <input class="plan-name" data-testid="plan-name" aria-label="plan name" prop:value=move || wb.settings.with(|p| p.name.clone())
                 on:change=move |ev| { let v = event_target_value(&ev); wb.edit(|p| p.name = v); } />
-            <select aria-label="open a demo" on:change=open_demo>
+            <select aria-label="open a demo" data-testid="demo-picker" on:change=open_demo>
                 <option value="">"Open a demo (illustrative)…"</option>
                 {demos::DEMOS.iter().map(|d| view! { <option value=*d>{*d}</option> }).collect_view()}
             </select>
@@ -63,12 +63,12 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
                 "of"<input id="blank-mm" class="short" type="number" min="1" max="100" prop:value=move || blank_mm.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_mm.set(v.clamp(1.0, 100.0)); } />"mm"</label>
             <button id="new-blank" on:click=new_blank>"New blank tray"</button>
             <span class="spacer"></span>
-            <button id="unit" on:click=flip_unit>{move || format!("Show {}", if unit.get() == Unit::Celsius { "°F" } else { "°C" })}</button>
+            <button id="unit" data-testid="unit" on:click=flip_unit>{move || format!("Show {}", if unit.get() == Unit::Celsius { "°F" } else { "°C" })}</button>
             <button id="share" on:click=share>"Copy share link"</button>
-            <button id="show-shortcuts" title="Keyboard shortcuts (key ?)" aria-label="keyboard shortcuts" aria-expanded=move || help.get().to_string() on:click=move |_| help.update(|h| *h = !*h)>"?"</button>
+            <button id="show-shortcuts" data-testid="show-shortcuts" title="Keyboard shortcuts (key ?)" aria-label="keyboard shortcuts" aria-expanded=move || help.get().to_string() on:click=move |_| help.update(|h| *h = !*h)>"?"</button>
             <span class="link-len" id="link-len">{move || format!("{} {} characters", if copied.get() { "copied," } else { "link" }, wb.link_len.get())}</span>
         </header>
-        <div id="notice" role="status" class:hidden=move || wb.notice.get().is_none()>
+        <div id="notice" data-testid="notice" role="status" class:hidden=move || wb.notice.get().is_none()>
             <span>{move || wb.notice.get().unwrap_or_default()}</span>
             <button on:click=move |_| wb.notice.set(None)>"Dismiss"</button>
         </div>

@@ -26,7 +26,7 @@ pub fn Outcome() -> impl IntoView {
                 };
                 view! {
                     <p class="error" role="alert">{format!("This plan cannot be solved: {msg}")}</p>
-                    {wanted.map(|name| view! { <button id="offer-import" on:click=pick>{format!("Import map library '{name}'…")}</button> })}
+                    {wanted.map(|name| view! { <button id="offer-import" data-testid="offer-import" on:click=pick>{format!("Import map library '{name}'…")}</button> })}
                 }.into_any()
             }
             Some(Ok(e)) => {
@@ -75,5 +75,5 @@ pub fn Outcome() -> impl IntoView {
             }
         })
     };
-    view! { <div id="summary">{summary}</div> }
+    view! { <div id="summary" data-testid="summary">{summary}</div> }
 }

@@ -39,7 +39,7 @@ pub fn PlanningPanel() -> impl IntoView {
     view! {
         <h2>"Plan for"</h2>
         <label>"Objective"
-            <select id="objective" on:change=on_objective prop:value=move || current().objective.as_str()>
+            <select id="objective" data-testid="objective" on:change=on_objective prop:value=move || current().objective.as_str()>
                 {Objective::ALL.map(|o| view! { <option value=o.as_str() title=o.words()>{label(o)}</option> }).collect_view()}
             </select>
         </label>
@@ -118,8 +118,8 @@ pub fn PlanningReport() -> impl IntoView {
     view! {
         <div id="planning-report">
             {move || report().map(|(loop_line, rows)| view! {
-                {loop_line.map(|l| view! { <p id="loop-report">{l}</p> })}
-                <table class="uniformity" id="uniformity">
+                {loop_line.map(|l| view! { <p id="loop-report" data-testid="loop-report">{l}</p> })}
+                <table class="uniformity" id="uniformity" data-testid="uniformity">
                     <caption>"How evenly each food heats: CV of the rise σ/(T̄ − T₀) (population σ over the cells) · warmest − coldest cell · share of targeted cells in band"</caption>
                     <thead><tr><th>"food"</th><th>"steered, simulated"</th><th>"steered, linear"</th><th>"unsteered, linear"</th></tr></thead>
                     <tbody>{rows.into_iter().map(|(n, a, b, c)| view! { <tr><td>{n}</td><td>{a}</td><td>{b}</td><td>{c}</td></tr> }).collect_view()}</tbody>

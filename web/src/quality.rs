@@ -24,7 +24,7 @@ pub fn CalibrationQuality() -> impl IntoView {
                 let notes = r.notes.iter().take(30).map(|n| view! { <li>{r.note_line(n)}</li> }).collect_view();
                 let more = r.notes.len().saturating_sub(30);
                 view! {
-                    <section id="quality" class="quality">
+                    <section id="quality" data-testid="quality" class="quality">
                         <h2>"Calibration quality"</h2>
                         <p>{format!("'{}' on layout '{}': {} runs, {} readings on food ({} over empty cells ignored). Rates are least-squares slopes over the straight part of each curve (thaw band, lag, the approach to boiling and outliers dropped); unmeasured cells are filled from the nearest measured cell of the same food and flagged.", r.name, r.layout, r.runs, r.readings, r.ignored)}</p>
                         <details open=r.configs.len() <= 12>

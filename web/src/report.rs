@@ -54,7 +54,7 @@ pub fn PrintedPlan() -> impl IntoView {
         })
     };
     view! {
-        <section class="print-only" id="printed-plan">
+        <section class="print-only" id="printed-plan" data-testid="printed-plan">
             {plan}
             {schedule}
         </section>

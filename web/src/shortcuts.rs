@@ -110,7 +110,7 @@ pub fn Shortcuts(help: RwSignal<bool>) -> impl IntoView {
     });
     on_cleanup(move || keys.remove());
     view! {
-        <div id="shortcuts" class="overlay" role="dialog" aria-modal="false" aria-label="Keyboard shortcuts" class:hidden=move || !help.get()>
+        <div id="shortcuts" data-testid="shortcuts" class="overlay" role="dialog" aria-modal="false" aria-label="Keyboard shortcuts" class:hidden=move || !help.get()>
             <h2>"Keyboard shortcuts"</h2>
             <table>{TABLE.iter().map(|(k, what)| view! { <tr><th scope="row"><kbd>{*k}</kbd></th><td>{*what}</td></tr> }).collect_view()}</table>
             <button on:click=move |_| help.set(false)>"Close"</button>

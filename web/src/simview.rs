@@ -92,7 +92,7 @@ pub fn SimViewPicker(view: RwSignal<SimView>, depth_mm: RwSignal<f64>) -> impl I
     view! {
         <div class="row sim-view">
             <label>"Show"
-                <select id="sim-view" aria-label="which point of each cell the simulated map shows" on:change=move |ev| {
+                <select id="sim-view" data-testid="sim-view" aria-label="which point of each cell the simulated map shows" on:change=move |ev| {
                     let k = event_target_value(&ev);
                     if let Some(v) = SimView::ALL.into_iter().find(|v| v.key() == k) {
                         view.set(v);
@@ -104,7 +104,7 @@ pub fn SimViewPicker(view: RwSignal<SimView>, depth_mm: RwSignal<f64>) -> impl I
                 </select>
             </label>
             <label class:hidden=move || view.get() != SimView::Depth>"depth (mm)"
-                <input id="sim-depth" class="short" type="number" min="0" max="200" step="1"
+                <input id="sim-depth" data-testid="sim-depth" class="short" type="number" min="0" max="200" step="1"
                     prop:value=move || depth_mm.get().to_string()
                     on:change=move |ev| set_depth(depth_mm, &event_target_value(&ev)) />
             </label>
