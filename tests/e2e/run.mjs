@@ -160,7 +160,7 @@ await test('hostile links show a message and leave the autosaved plan untouched'
 await test('50 random edits survive a reload', async ({ page }) => {
   await open(page);
   for (let k = 0; k < 50; k++) {
-    await (k % 2 ? W(page).foodSwatch(0) : W(page).targetSwatch(0)).nth(k % 3).click();
+    await (k % 2 ? W(page).foodSwatch(k % 3) : W(page).targetSwatch(k % 3)).click();
     const r = (k * 7) % 18, c = (k * 11) % 28;
     await drag(page, [r, c], [r, c]);
   }

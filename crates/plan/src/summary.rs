@@ -85,17 +85,23 @@ pub fn across_ovens_json(plan: &Plan, a: &crate::evaluate::AcrossOvens) -> serde
     })
 }
 
-/// Each item's safety margin over the placement scenarios ([`crate::robustness::safety_margins`]).
-pub fn scenarios_json(plan: &Plan, m: &crate::robustness::SafetyMargins) -> serde_json::Value {
+/// Each item's safety margin over the scenarios ([`crate::robustness::safety_margins`]), with
+/// the lower `quantile` of it.
+pub fn scenarios_json(
+    plan: &Plan,
+    m: &crate::robustness::SafetyMargins,
+    quantile: f64,
+) -> serde_json::Value {
     let finite = |v: f64| if v.is_finite() { Some(v) } else { None };
     serde_json::json!({
         "names": m.scenarios,
+        "quantile": quantile,
         "items": plan.items.iter().enumerate().map(|(k, i)| {
             let (lo, mid, hi, at) = m.spread(k);
             serde_json::json!({
                 "name": i.name,
                 "margins_k": m.margins.iter().map(|s| finite(s[k])).collect::<Vec<_>>(),
-                "least_k": finite(lo), "median_k": finite(mid), "largest_k": finite(hi), "least_in": at,
+                "least_k": finite(lo), "quantile_k": finite(m.quantile(k, quantile)), "median_k": finite(mid), "largest_k": finite(hi), "least_in": at,
             })
         }).collect::<Vec<_>>(),
     })

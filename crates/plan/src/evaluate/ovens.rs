@@ -117,6 +117,24 @@ impl Evaluator {
         self.finish(plan, &prep, &sol, None)
     }
 
+    /// [`Evaluator::evaluate_dwell`] on this evaluator's maps changed by `perturb` (a scenario:
+    /// another power, other rates); the maps are restored afterwards.
+    pub fn evaluate_dwell_with(
+        &mut self,
+        plan: &Plan,
+        dwell: &[f64],
+        perturb: &mut dyn FnMut(&mut super::PlanMaps),
+    ) -> Result<Evaluation, PlanError> {
+        self.maps(plan)?;
+        let kept = self.maps.clone();
+        if let Some(m) = self.maps.as_mut() {
+            perturb(m);
+        }
+        let result = self.evaluate_dwell(plan, dwell);
+        self.maps = kept;
+        result
+    }
+
     /// Other ovens (their map libraries) on whose maps the hard limits of a constrained objective
     /// must hold as well as on the plan's own; an empty list holds them on the plan's oven only.
     pub fn hold_on(&mut self, others: Vec<MapLibrary>) {
