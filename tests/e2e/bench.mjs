@@ -30,6 +30,16 @@ const stats = await page.evaluate(() => {
   };
   return { quick: q('tc-quick'), input_to_frame: q('tc-input-to-frame'), evaluate: q('tc-solve-and-simulate'), worker: q('tc-worker-evaluate'), draw_tray: q('tc-draw-tray'), draw_maps: q('tc-draw-maps'), full_frame: q('tc-full-frame') };
 });
+// A constrained objective with the simulation in the loop: the hot-lunch demo's safe minimum.
+const settled = () => page.waitForFunction(() => window.traycast.settled() && window.traycast.evaluation() !== null, null, { timeout: 60000 });
+await page.getByTestId('demo-picker').selectOption('hot-lunch');
+await settled();
+await page.getByTestId('objective').selectOption('safe-minimum');
+await page.waitForFunction(() => window.traycast.settled() && window.traycast.evaluation()?.planning.objective === 'safe-minimum', null, { timeout: 60000 });
+const safeMinimum = await page.evaluate(() => {
+  const last = (name) => { const v = performance.getEntriesByName(name); return v[v.length - 1].duration; };
+  return { worker_ms: last('tc-worker-evaluate'), round_trip_ms: last('tc-solve-and-simulate'), passes: window.traycast.evaluation().loop?.passes ?? null };
+});
 const isolated = await page.evaluate(() => window.crossOriginIsolated === true);
-console.log(JSON.stringify({ ...stats, isolated, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
+console.log(JSON.stringify({ ...stats, safe_minimum: safeMinimum, isolated, first_solved_view_ms: firstView, wall_s: (Date.now() - t0) / 1000 }));
 await browser.close();

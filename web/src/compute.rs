@@ -116,7 +116,9 @@ pub fn keep_current(wb: Workbench) {
             }
         }
         // Autosave, the link and the full evaluation wait for the pause: a stroke pays for none.
-        let full = gloo::timers::callback::Timeout::new(PAUSE_MS, move || {
+        // The first evaluation has no strokes to wait for.
+        let pause = if now == 1 { 0 } else { PAUSE_MS };
+        let full = gloo::timers::callback::Timeout::new(pause, move || {
             let p = wb.plan.get_untracked();
             storage::save(&p);
             wb.link_len.set(storage::set_fragment(&p));

@@ -54,5 +54,6 @@ fn main() {
     if let Some(sw) = web_sys::window().map(|w| w.navigator().service_worker()) {
         let _ = sw.register("sw.js");
     }
+    worker::start_early();
     leptos::mount::mount_to_body(app::App);
 }

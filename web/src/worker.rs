@@ -145,7 +145,7 @@ impl Evaluations {
             deliver: Rc::new(deliver),
             library: Rc::new(library),
         };
-        match spawn() {
+        match EARLY.with(|e| e.borrow_mut().take()).unwrap_or_else(spawn) {
             Ok(worker) => this.listen(worker),
             Err(why) => web_sys::console::warn_1(&format!("evaluating on the page: {why}").into()),
         }
@@ -256,6 +256,17 @@ impl Evaluations {
             self.request(req.rev, req.plan, req.library_rev);
         }
     }
+}
+
+thread_local! {
+    /// The worker started before the page is built ([`start_early`]), for the first
+    /// [`Evaluations::start`] to take.
+    static EARLY: RefCell<Option<Result<Worker, String>>> = const { RefCell::new(None) };
+}
+
+/// Starts the worker at once, so it loads while the page is being built.
+pub fn start_early() {
+    EARLY.with(|e| *e.borrow_mut() = Some(spawn()));
 }
 
 /// Starts `worker.js` as a module worker and sends it this page's module script and compiled
