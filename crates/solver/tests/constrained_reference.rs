@@ -316,4 +316,31 @@ proptest! {
             (c, w) => prop_assert!(false, "cold {c:?} warm {w:?}"),
         }
     }
+
+    /// Started from an answer on other rates (a stroke that moved food changes the maps), a solve
+    /// still reaches the cold start's optimum: a kept basis inverse that no longer inverts the
+    /// basis is never used.
+    #[test]
+    fn warm_start_on_changed_rates_equals_cold_start((rates, task) in prop_oneof![task(0), task(1)],
+                                                     pick in 0usize..20, factor in 0.5..1.5f64) {
+        let Ok(before) = solve_task(&rates, &task) else { return Ok(()) };
+        let mut a = rates.matrix().clone();
+        let j = pick % a.ncols();
+        for i in 0..a.nrows() {
+            a[(i, j)] *= factor;
+        }
+        let changed = traycast_solver::Rates::from_matrix(a).unwrap();
+        let cold = solve_task(&changed, &task);
+        let warm = solve_task_from(&changed, &task, Some(&before));
+        match (cold, warm) {
+            (Ok(c), Ok(w)) => {
+                prop_assert_eq!(w.outcome, Outcome::Optimal);
+                let scale = 1.0 + c.objective.abs();
+                prop_assert!((c.objective - w.objective).abs() <= 2e-6 * scale,
+                    "cold {} warm {}", c.objective, w.objective);
+            }
+            (Err(Refusal::Infeasible(_)), Err(Refusal::Infeasible(_))) => {}
+            (c, w) => prop_assert!(false, "cold {c:?} warm {w:?}"),
+        }
+    }
 }

@@ -111,7 +111,7 @@ pub(super) fn solve(
             Err(Refusal::Infeasible(_)) if stiff < STIFFEST => {
                 let mut lp_task = task.clone();
                 lp_task.goal = super::Goal::Shortest;
-                let lp = super::simplex::solve(rates, &lp_task, &[])?;
+                let lp = super::simplex::solve(rates, &lp_task, &[], None)?;
                 x = lp.dwell;
                 ax = rates.apply(&x);
                 have_feasible = true;

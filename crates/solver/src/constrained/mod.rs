@@ -247,6 +247,8 @@ pub struct Planned {
     /// The constraints held with equality at the answer (the simplex basis, or the active set of
     /// the fit's last piece). Handed back to [`solve_task_from`], they warm-start the next solve.
     pub active: Vec<Constraint>,
+    /// The simplex basis's inverse, for the next warm start (checked before it is used).
+    basis_inverse: Option<nalgebra::DMatrix<f64>>,
 }
 
 impl Planned {
@@ -342,10 +344,19 @@ pub fn solve_task_from(
     if let Some(c) = crossed_row(task) {
         return Err(Refusal::Infeasible(c));
     }
-    let (dwell, margin, multipliers, iterations, passes, active) = match &task.goal {
+    let (dwell, margin, multipliers, iterations, passes, active, basis_inverse) = match &task.goal {
         Goal::Shortest | Goal::MaxMargin => {
-            let lp = simplex::solve(rates, task, hint)?;
-            (lp.dwell, lp.margin, lp.multipliers, lp.pivots, 0, lp.basis)
+            let inverse = from.and_then(|p| p.basis_inverse.as_ref());
+            let lp = simplex::solve(rates, task, hint, inverse)?;
+            (
+                lp.dwell,
+                lp.margin,
+                lp.multipliers,
+                lp.pivots,
+                0,
+                lp.basis,
+                Some(lp.inverse),
+            )
         }
         Goal::Fit(spec) => {
             let start = from
@@ -365,6 +376,7 @@ pub fn solve_task_from(
                 qp.changes,
                 qp.passes,
                 qp.active,
+                None,
             )
         }
     };
@@ -391,6 +403,7 @@ pub fn solve_task_from(
         iterations,
         passes,
         active,
+        basis_inverse,
     })
 }
 

@@ -31,12 +31,21 @@ pub(super) struct Lp {
     pub pivots: usize,
     /// The final basis, by name.
     pub basis: Vec<Constraint>,
+    /// The final basis's inverse, which warm-starts the next task on the same rates.
+    pub inverse: DMatrix<f64>,
 }
 
 /// Solves a linear goal, from the basis `hint` names when it is still a dual-feasible vertex of
 /// this task (the cost vector is the same for every task of a goal, so a basis stays dual
 /// feasible when only the bands, limits or budget change); otherwise from the start above.
-pub(super) fn solve(rates: &Rates, task: &Task, hint: &[Constraint]) -> Result<Lp, Refusal> {
+/// `inverse`, the hint's basis inverse from the last solve, spares inverting it again when it
+/// still inverts this task's basis (checked, never assumed: the rates may have changed).
+pub(super) fn solve(
+    rates: &Rates,
+    task: &Task,
+    hint: &[Constraint],
+    inverse: Option<&DMatrix<f64>>,
+) -> Result<Lp, Refusal> {
     let a = rates.matrix();
     let (m, n) = a.shape();
     let margin_cap = match task.goal {
@@ -58,7 +67,7 @@ pub(super) fn solve(rates: &Rates, task: &Task, hint: &[Constraint]) -> Result<L
         cost[n] = -1.0;
         basis.push(rows.list.len() - 1); // the margin cap is the last row
     }
-    let mut state = match warm(&rows, &cost, hint) {
+    let mut state = match warm(&rows, &cost, hint, inverse) {
         Some(s) => s,
         None => State::start(&rows, &cost, basis)?,
     };
@@ -146,20 +155,49 @@ pub(super) fn solve(rates: &Rates, task: &Task, hint: &[Constraint]) -> Result<L
 
 /// The state at the basis `hint` names, if every constraint of it is a row of this task, the rows
 /// are independent and their multipliers are non-negative.
-fn warm(rows: &Rows, cost: &[f64], hint: &[Constraint]) -> Option<State> {
+fn warm(
+    rows: &Rows,
+    cost: &[f64],
+    hint: &[Constraint],
+    inverse: Option<&DMatrix<f64>>,
+) -> Option<State> {
     if hint.len() != rows.nv() {
         return None;
     }
     let index: std::collections::HashMap<Constraint, usize> =
         rows.list.iter().enumerate().map(|(r, &c)| (c, r)).collect();
     let basis: Option<Vec<usize>> = hint.iter().map(|c| index.get(c).copied()).collect();
-    let state = State::start(rows, cost, basis?).ok()?;
+    let basis = basis?;
+    let state = match inverse.filter(|inv| inverts(rows, &basis, inv)) {
+        Some(inv) => State::at(rows, cost, basis, inv.clone()),
+        None => State::start(rows, cost, basis).ok()?,
+    };
     let ymax = state.y.iter().fold(0.0f64, |a, v| a.max(v.abs()));
     state
         .y
         .iter()
         .all(|&y| y >= -1e-12 * ymax.max(f64::MIN_POSITIVE))
         .then_some(state)
+}
+
+/// Whether `inv` inverts the basis matrix of `basis` (rows of this task): B·(inv·v) = v on a
+/// fixed vector with distinct entries, to rounding. O(n²), against O(n³) for a fresh inverse.
+fn inverts(rows: &Rows, basis: &[usize], inv: &DMatrix<f64>) -> bool {
+    let nv = rows.nv();
+    if inv.shape() != (nv, nv) {
+        return false;
+    }
+    let v = nalgebra::DVector::from_iterator(nv, (0..nv).map(|k| 1.0 + k as f64 / nv as f64));
+    let u = inv * &v;
+    let (mut err, mut scale) = (0.0f64, 0.0f64);
+    for (k, &r) in basis.iter().enumerate() {
+        let g = rows.dense(r);
+        let bu: f64 = g.iter().zip(u.iter()).map(|(a, b)| a * b).sum();
+        let size: f64 = g.iter().zip(u.iter()).map(|(a, b)| (a * b).abs()).sum();
+        err = err.max((bu - v[k]).abs());
+        scale = scale.max(size);
+    }
+    err.is_finite() && err <= 1e-9 * scale.max(1.0)
 }
 
 /// The working bound on the margin: above anything a bounded margin can reach, or a refusal when
@@ -231,6 +269,20 @@ impl State {
         Ok(s)
     }
 
+    /// The state at `basis` whose inverse is known.
+    fn at(rows: &Rows, cost: &[f64], basis: Vec<usize>, binv: DMatrix<f64>) -> Self {
+        let nv = rows.nv();
+        let mut s = State {
+            basis,
+            binv,
+            z: vec![0.0; nv],
+            ax: vec![0.0; rows.a.nrows()],
+            y: vec![0.0; nv],
+        };
+        s.recompute(rows, cost);
+        s
+    }
+
     /// Inverts the basis afresh and recomputes z, A·x and y from it.
     fn refresh(&mut self, rows: &Rows, cost: &[f64]) -> Result<(), Refusal> {
         let nv = rows.nv();
@@ -245,6 +297,13 @@ impl State {
             return Err(Refusal::IterationLimit(0));
         };
         self.binv = inv;
+        self.recompute(rows, cost);
+        Ok(())
+    }
+
+    /// z, A·x and y from the basis inverse.
+    fn recompute(&mut self, rows: &Rows, cost: &[f64]) {
+        let nv = rows.nv();
         let gw = nalgebra::DVector::from_iterator(nv, self.basis.iter().map(|&r| rows.rhs[r]));
         let z = &self.binv * gw;
         self.z = z.iter().copied().collect();
@@ -264,7 +323,6 @@ impl State {
             .binv
             .tr_mul(&nalgebra::DVector::from_column_slice(cost));
         self.y = y.iter().copied().collect();
-        Ok(())
     }
 
     /// The most violated row (relative to its scale), or with Bland's rule the first violated one.
@@ -343,5 +401,6 @@ fn finish(rows: &Rows, task: &Task, state: State, pivots: usize) -> Result<Lp, R
         multipliers,
         pivots,
         basis: state.basis.iter().map(|&r| rows.list[r]).collect(),
+        inverse: state.binv,
     })
 }
