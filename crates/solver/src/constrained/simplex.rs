@@ -180,24 +180,38 @@ fn warm(
         .then_some(state)
 }
 
-/// Whether `inv` inverts the basis matrix of `basis` (rows of this task): B·(inv·v) = v on a
-/// fixed vector with distinct entries, to rounding. O(n²), against O(n³) for a fresh inverse.
+/// Whether `inv` inverts the basis matrix of `basis` (rows of this task): B·(inv·v) = v on two
+/// fixed probe vectors, to rounding. O(n²), against O(n³) for a fresh inverse. The probes' entries
+/// are spaced irrationally (and alternate in sign in the second), so no simple structure of a
+/// basis can hide a changed row from both.
 fn inverts(rows: &Rows, basis: &[usize], inv: &DMatrix<f64>) -> bool {
     let nv = rows.nv();
     if inv.shape() != (nv, nv) {
         return false;
     }
-    let v = nalgebra::DVector::from_iterator(nv, (0..nv).map(|k| 1.0 + k as f64 / nv as f64));
-    let u = inv * &v;
-    let (mut err, mut scale) = (0.0f64, 0.0f64);
-    for (k, &r) in basis.iter().enumerate() {
-        let g = rows.dense(r);
-        let bu: f64 = g.iter().zip(u.iter()).map(|(a, b)| a * b).sum();
-        let size: f64 = g.iter().zip(u.iter()).map(|(a, b)| (a * b).abs()).sum();
-        err = err.max((bu - v[k]).abs());
-        scale = scale.max(size);
-    }
-    err.is_finite() && err <= 1e-9 * scale.max(1.0)
+    let golden = 0.618_033_988_749_894_9_f64;
+    let probes = [
+        nalgebra::DVector::from_iterator(
+            nv,
+            (0..nv).map(|k| 1.0 + ((k + 1) as f64 * golden).fract()),
+        ),
+        nalgebra::DVector::from_iterator(
+            nv,
+            (0..nv).map(|k| if k % 2 == 0 { 1.0 } else { -1.0 } * ((k + 2) as f64).sqrt()),
+        ),
+    ];
+    probes.iter().all(|v| {
+        let u = inv * v;
+        let (mut err, mut scale) = (0.0f64, 0.0f64);
+        for (k, &r) in basis.iter().enumerate() {
+            let g = rows.dense(r);
+            let bu: f64 = g.iter().zip(u.iter()).map(|(a, b)| a * b).sum();
+            let size: f64 = g.iter().zip(u.iter()).map(|(a, b)| (a * b).abs()).sum();
+            err = err.max((bu - v[k]).abs());
+            scale = scale.max(size).max(v[k].abs());
+        }
+        err.is_finite() && err <= 1e-9 * scale
+    })
 }
 
 /// The working bound on the margin: above anything a bounded margin can reach, or a refusal when
