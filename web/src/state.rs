@@ -8,7 +8,7 @@ use crate::history::History;
 use crate::paint::{Tool, paint};
 use crate::simview::SimView;
 use crate::units::Unit;
-use leptos::html;
+use crate::views::Canvases;
 use leptos::prelude::*;
 use traycast_plan::calibrate::QualityReport;
 use traycast_plan::evaluate::{Evaluation, Quick};
@@ -23,23 +23,6 @@ const HISTORY_STEPS: usize = 200;
 
 /// A full evaluation, or why there is none, with the revision it belongs to.
 pub type Tagged = (u64, Result<Evaluation, String>);
-
-/// The canvases, so the drawing effects and the panels that show them meet in one place.
-#[derive(Clone, Copy)]
-pub struct Canvases {
-    /// The tray editor.
-    pub tray: NodeRef<html::Canvas>,
-    /// The linear prediction.
-    pub linear: NodeRef<html::Canvas>,
-    /// The simulated map.
-    pub simulated: NodeRef<html::Canvas>,
-    /// The off-band map.
-    pub off_band: NodeRef<html::Canvas>,
-    /// The dwell bars.
-    pub bars: NodeRef<html::Canvas>,
-    /// The foods-over-time chart.
-    pub course: NodeRef<html::Canvas>,
-}
 
 /// Everything the panels share. Copy: every part is a signal or a handle.
 #[derive(Clone, Copy)]

@@ -5,7 +5,25 @@
 use crate::compute::{mark, measure, measure_input};
 use crate::draw::{self, Scale};
 use crate::state::Workbench;
+use leptos::html;
 use leptos::prelude::*;
+
+/// The canvases, so the drawing effects and the panels that show them meet in one place.
+#[derive(Clone, Copy)]
+pub struct Canvases {
+    /// The tray editor.
+    pub tray: NodeRef<html::Canvas>,
+    /// The linear prediction.
+    pub linear: NodeRef<html::Canvas>,
+    /// The simulated map.
+    pub simulated: NodeRef<html::Canvas>,
+    /// The off-band map.
+    pub off_band: NodeRef<html::Canvas>,
+    /// The dwell bars.
+    pub bars: NodeRef<html::Canvas>,
+    /// The foods-over-time chart.
+    pub course: NodeRef<html::Canvas>,
+}
 
 /// Drawing width of the tray editor, px.
 pub const TRAY_PX: f64 = 560.0;
