@@ -488,6 +488,62 @@ await test('the printed report holds the plan, the schedule, the maps, one safet
   await page.screenshot({ path: join(ART, 'report-print.png'), fullPage: true });
 });
 
+await test('every form control has an accessible name, and every number field says its unit', async ({ page }) => {
+  await open(page);
+  const unnamed = await page.evaluate(() => [...document.querySelectorAll('input, select, button, textarea')]
+    .filter((el) => el.offsetParent !== null || el.type === 'file')
+    .filter((el) => {
+      const label = (el.getAttribute('aria-label') || '') + [...(el.labels || [])].map((l) => l.textContent).join(' ') + (el.tagName === 'BUTTON' ? el.textContent : '') + (el.getAttribute('title') || '');
+      return label.trim().length === 0;
+    })
+    .map((el) => el.outerHTML.slice(0, 120)));
+  assert(unnamed.length === 0, 'controls without a name: ' + unnamed.join('\n'));
+  const unitless = await page.evaluate(() => [...document.querySelectorAll('input[type=number]')]
+    .filter((el) => {
+      const text = (el.getAttribute('aria-label') || '') + [...(el.labels || [])].map((l) => l.textContent).join(' ');
+      return !/(°C|°F|K\b|mm|W\b|\(s\)|%|J\/|cells|0–1|weight|Rounds|Configurations|\bs\b)/.test(text);
+    })
+    .map((el) => el.outerHTML.slice(0, 120)));
+  assert(unitless.length === 0, 'number fields without a unit: ' + unitless.join('\n'));
+});
+
+await test('two fingers pinch-zoom the tray without painting; a tap then paints the exact cell; the zoom resets', async () => {
+  const context = await browser.newContext({ viewport: { width: 820, height: 1180 }, hasTouch: true, isMobile: true });
+  const page = await context.newPage();
+  await open(page);
+  const before = await plan(page);
+  await W(page).tray.scrollIntoViewIfNeeded();
+  const transform = await page.evaluate(() => {
+    const c = document.querySelector('[data-testid="tray"]');
+    const r = c.getBoundingClientRect();
+    const send = (type, id, x, y) => c.dispatchEvent(new PointerEvent(type, { pointerId: id, pointerType: 'touch', isPrimary: id === 1, clientX: x, clientY: y, bubbles: true }));
+    const [cx, cy] = [r.left + r.width / 2, r.top + r.height / 2];
+    send('pointerdown', 11, cx - 20, cy);
+    send('pointerdown', 12, cx + 20, cy);
+    send('pointermove', 11, cx - 60, cy);
+    send('pointermove', 12, cx + 60, cy);
+    send('pointerup', 11, cx - 60, cy);
+    send('pointerup', 12, cx + 60, cy);
+    return c.style.transform;
+  });
+  assert(/scale\(3(\.0+)?\)/.test(transform), 'spreading 40 px to 120 px zooms 3×: ' + transform);
+  const pinched = await plan(page);
+  assert(same(pinched.food, before.food) && same(pinched.zone, before.zone), 'a pinch paints nothing');
+  // The centre cell is under the fingers' midpoint, so it stays in view: paint it with the food it is not.
+  const [row, col] = [Math.floor(before.tray.height / 2), Math.floor(before.tray.width / 2)];
+  const k = before.food[row][col] === 'A' ? 1 : 0;
+  await W(page).foodSwatch(k).click();
+  const at = await cellPoint(page, row, col);
+  await page.touchscreen.tap(at.x, at.y);
+  const after = await plan(page);
+  const changed = changedCells(before, after);
+  assert(changed.length === 1 && changed[0][0] === row && changed[0][1] === col, `zoomed tap painted ${JSON.stringify(changed)}`);
+  await page.screenshot({ path: join(ART, 'tablet-zoomed.png') });
+  await W(page).by('reset-zoom').click();
+  assert(/scale\(1(\.0+)?\)/.test(await W(page).tray.evaluate((c) => c.style.transform)), 'reset');
+  await context.close();
+});
+
 await browser.close();
 const passed = results.filter((r) => r[1]).length;
 const failed = results.length - passed;

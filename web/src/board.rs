@@ -3,6 +3,7 @@
 
 use crate::draw;
 use crate::files::download_url;
+use crate::pinch::Zoom;
 use crate::simview::SimViewPicker;
 use crate::state::{Workbench, workbench};
 use crate::views::TRAY_PX;
@@ -10,15 +11,21 @@ use leptos::html;
 use leptos::prelude::*;
 use wasm_bindgen::JsCast;
 
-/// The cell under the pointer, wherever CSS, page zoom or the device's pixel ratio put the canvas:
-/// the pointer's place inside the canvas's content box, scaled to its drawing.
+/// The cell under the pointer, wherever CSS, page zoom, a pinch-zoom or the device's pixel ratio
+/// put the canvas: the pointer's place inside the canvas's content box as shown, scaled to its
+/// drawing.
 fn cell_at(wb: Workbench, ev: &web_sys::PointerEvent) -> Option<usize> {
     let canvas = wb.canvases.tray.get_untracked()?;
     let rect = canvas.get_bounding_client_rect();
-    let shown = (canvas.client_width() as f64, canvas.client_height() as f64);
+    // The transform's magnification: the shown box over the laid-out one.
+    let s = rect.width() / (canvas.offset_width() as f64).max(1.0);
+    let shown = (
+        canvas.client_width() as f64 * s,
+        canvas.client_height() as f64 * s,
+    );
     let at = (
-        ev.client_x() as f64 - rect.left() - canvas.client_left() as f64,
-        ev.client_y() as f64 - rect.top() - canvas.client_top() as f64,
+        ev.client_x() as f64 - rect.left() - canvas.client_left() as f64 * s,
+        ev.client_y() as f64 - rect.top() - canvas.client_top() as f64 * s,
     );
     wb.plan.with_untracked(|p| {
         // The drawing's size in units, whatever the device's pixel ratio made its backing store.
@@ -100,7 +107,30 @@ fn hover_text(wb: Workbench) -> String {
 pub fn Board() -> impl IntoView {
     let wb = workbench();
     let c = wb.canvases;
+    // Two fingers pinch and pan; one finger, a pen or a mouse paints.
+    let zoom = RwSignal::new(Zoom::NONE);
+    let frame = NodeRef::<html::Div>::new();
+    let fingers = StoredValue::new(Vec::<(i32, (f64, f64))>::new());
+    let pinch = StoredValue::new(None::<(Zoom, [(f64, f64); 2])>);
+    let place = move |ev: &web_sys::PointerEvent| {
+        let r = frame.get_untracked().map(|f| f.get_bounding_client_rect());
+        let (x0, y0) = r.as_ref().map_or((0.0, 0.0), |r| (r.left(), r.top()));
+        (ev.client_x() as f64 - x0, ev.client_y() as f64 - y0)
+    };
+    let two = move || -> Option<[(f64, f64); 2]> {
+        fingers.with_value(|f| (f.len() == 2).then(|| [f[0].1, f[1].1]))
+    };
     let on_down = move |ev: web_sys::PointerEvent| {
+        if ev.pointer_type() == "touch" {
+            fingers.update_value(|f| f.push((ev.pointer_id(), place(&ev))));
+            if let Some(points) = two() {
+                wb.cancel_stroke();
+                pinch.set_value(Some((zoom.get_untracked(), points)));
+            }
+            if fingers.with_value(|f| f.len() > 1) {
+                return;
+            }
+        }
         let Some(i) = cell_at(wb, &ev) else { return };
         if let Some(t) = ev
             .target()
@@ -111,6 +141,24 @@ pub fn Board() -> impl IntoView {
         wb.begin_stroke(i);
     };
     let on_move = move |ev: web_sys::PointerEvent| {
+        if ev.pointer_type() == "touch" {
+            let at = place(&ev);
+            fingers.update_value(|f| {
+                f.iter_mut()
+                    .filter(|(id, _)| *id == ev.pointer_id())
+                    .for_each(|p| p.1 = at)
+            });
+            if let (Some((start, from)), Some(now), Some(f)) =
+                (pinch.get_value(), two(), frame.get_untracked())
+            {
+                let size = (f.client_width() as f64, f.client_height() as f64);
+                zoom.set(start.pinched(from, now, size));
+                return;
+            }
+            if pinch.get_value().is_some() {
+                return;
+            }
+        }
         let cell = cell_at(wb, &ev);
         wb.hover.set(cell);
         if let Some(i) = cell
@@ -120,6 +168,16 @@ pub fn Board() -> impl IntoView {
         }
     };
     let on_up = move |ev: web_sys::PointerEvent| {
+        if ev.pointer_type() == "touch" {
+            fingers.update_value(|f| f.retain(|(id, _)| *id != ev.pointer_id()));
+            if pinch.get_value().is_some() {
+                // No painting until every finger of a pinch is lifted.
+                if fingers.with_value(Vec::is_empty) {
+                    pinch.set_value(None);
+                }
+                return;
+            }
+        }
         wb.end_stroke(cell_at(wb, &ev));
     };
     let png = move |r: NodeRef<html::Canvas>, name: &'static str| {
@@ -135,9 +193,12 @@ pub fn Board() -> impl IntoView {
     view! {
         <section class="board">
             <h2>"Tray " <small>{move || wb.settings.with(|p| format!("{} × {} cells of {} mm", p.tray.width, p.tray.height, p.tray.cell_mm))}</small></h2>
-            <canvas id="tray" data-testid="tray" node_ref=c.tray tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
+            <div class="tray-frame" node_ref=frame>
+            <canvas id="tray" data-testid="tray" node_ref=c.tray style:transform=move || zoom.get().css() tabindex="0" aria-label="Tray: arrow keys move the cell cursor, Space or Enter paints with the current brush"
                 on:keydown=move |ev| on_tray_key(wb, ev) on:blur=move |_| wb.cursor.set(None)
-                on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>
+                on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointercancel=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>
+            </div>
+            <button id="reset-zoom" data-testid="reset-zoom" class="small" class:hidden=move || zoom.get() == Zoom::NONE on:click=move |_| zoom.set(Zoom::NONE)>"Reset zoom"</button>
             <p class="hint phone-only">"Phone view: the tray, the maps and the outcome come first, the settings below. A finger paints; pinch to zoom the page."</p>
             <p class="hint" id="empty-hint" data-testid="empty-hint" class:hidden=move || wb.plan.with(|p| p.food.iter().any(|&f| f > 0))>
                 "An empty tray: pick a food on the left (or press 1–9) and paint it here with the mouse, a finger or the keyboard; then pick a target band and paint it over the food."

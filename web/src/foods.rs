@@ -101,13 +101,13 @@ pub fn Targets() -> impl IntoView {
                 <button class="swatch" data-testid=format!("target-swatch-{k}") style=format!("background:{colour};color:#fff") title="Paint this target" aria-label=format!("paint target {}", k + 1) aria-pressed=move || (tool.get() == Tool::Zone(k)).to_string() on:click=move |_| tool.set(Tool::Zone(k))>{draw::ZONE_GLYPHS[k % draw::ZONE_GLYPHS.len()]}</button>
                 <input class="name" aria-label="zone name" prop:value=move || wb.settings.with(|p| p.zones.get(k).map(|z| z.name.clone()).unwrap_or_default())
                     on:change=move |ev| { let v = event_target_value(&ev); set(Box::new(move |z| z.name = v)); } />
-                <label>"min"<input class="short" type="number" data-zone-min=k data-testid=format!("target-min-{k}") prop:value=temp(|z| z.min_c)
+                <label>{move || format!("min {}", unit.get().symbol())}<input class="short" type="number" data-zone-min=k data-testid=format!("target-min-{k}") prop:value=temp(|z| z.min_c)
                     on:change=move |ev| if let Some(c) = celsius(&ev) { set(Box::new(move |z| { z.min_c = c; z.max_c = z.max_c.max(c); })); } /></label>
-                <label>"max"<input class="short" type="number" data-zone-max=k data-testid=format!("target-max-{k}") prop:value=temp(|z| z.max_c)
+                <label>{move || format!("max {}", unit.get().symbol())}<input class="short" type="number" data-zone-max=k data-testid=format!("target-max-{k}") prop:value=temp(|z| z.max_c)
                     on:change=move |ev| if let Some(c) = celsius(&ev) { set(Box::new(move |z| { z.max_c = c; z.min_c = z.min_c.min(c); })); } /></label>
                 <label>"weight"<input class="short" type="number" step="0.5" prop:value=move || wb.settings.with(|p| p.zones.get(k).map(|z| z.weight.to_string()).unwrap_or_default())
                     on:change=move |ev| if let Some(v) = num(&ev) { set(Box::new(move |z| z.weight = v.clamp(0.001, 1000.0))); } /></label>
-                <label>"cap"<input class="short" type="number" placeholder="none" prop:value=move || wb.settings.with(|p| p.zones.get(k).and_then(|z| z.cap_c).map(|c| format!("{:.1}", unit.get().temp(c))).unwrap_or_default())
+                <label title="A hard maximum no cell of the target may pass">{move || format!("cap {}", unit.get().symbol())}<input class="short" type="number" placeholder="none" prop:value=move || wb.settings.with(|p| p.zones.get(k).and_then(|z| z.cap_c).map(|c| format!("{:.1}", unit.get().temp(c))).unwrap_or_default())
                     on:change=move |ev| { let v = celsius(&ev); set(Box::new(move |z| z.cap_c = v)); } /></label>
             </div>
         }

@@ -58,9 +58,9 @@ pub fn Header(help: RwSignal<bool>) -> impl IntoView {
                 <option value="">"Open a demo (illustrative)…"</option>
                 {demos::DEMOS.iter().map(|d| view! { <option value=*d>{*d}</option> }).collect_view()}
             </select>
-            <label title="The size of a new blank tray (the tray shown is described above it)">"New tray: cells"<input id="blank-w" class="short" type="number" min="1" max="128" prop:value=move || blank_w.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_w.set((v as usize).clamp(1, 128)); } />
-                "×"<input id="blank-h" class="short" type="number" min="1" max="128" prop:value=move || blank_h.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_h.set((v as usize).clamp(1, 128)); } />
-                "of"<input id="blank-mm" class="short" type="number" min="1" max="100" prop:value=move || blank_mm.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_mm.set(v.clamp(1.0, 100.0)); } />"mm"</label>
+            <label title="The size of a new blank tray (the tray shown is described above it)">"New tray: cells"<input id="blank-w" aria-label="new tray width (cells)" class="short" type="number" min="1" max="128" prop:value=move || blank_w.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_w.set((v as usize).clamp(1, 128)); } />
+                "×"<input id="blank-h" aria-label="new tray height (cells)" class="short" type="number" min="1" max="128" prop:value=move || blank_h.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_h.set((v as usize).clamp(1, 128)); } />
+                "of"<input id="blank-mm" aria-label="new tray cell size (mm)" class="short" type="number" min="1" max="100" prop:value=move || blank_mm.get().to_string() on:change=move |ev| if let Some(v) = num(&ev) { blank_mm.set(v.clamp(1.0, 100.0)); } />"mm"</label>
             <button id="new-blank" on:click=new_blank>"New blank tray"</button>
             <span class="spacer"></span>
             <button id="unit" data-testid="unit" on:click=flip_unit>{move || format!("Show {}", if unit.get() == Unit::Celsius { "°F" } else { "°C" })}</button>

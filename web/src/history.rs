@@ -55,6 +55,11 @@ impl<T: Clone + PartialEq> History<T> {
         Some(after)
     }
 
+    /// The state recorded last, taken back (a stroke abandoned: it is restored).
+    pub fn revert(&mut self) -> Option<T> {
+        self.back.pop()
+    }
+
     /// Ends a stroke recorded with [`History::record`] before it began: when it changed nothing
     /// (`current` is the state recorded), the step is dropped again.
     pub fn settle(&mut self, current: &T) {

@@ -20,6 +20,7 @@ mod history;
 mod outcome;
 mod oven;
 mod paint;
+mod pinch;
 mod planning;
 mod quality;
 mod report;

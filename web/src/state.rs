@@ -229,6 +229,20 @@ impl Workbench {
         self.rect_preview.set(None);
     }
 
+    /// Abandons the stroke under way (two fingers went down: a pinch, not a stroke): the plan is
+    /// as it was before it.
+    pub fn cancel_stroke(&self) {
+        if self.stroke.get_value().is_some() {
+            let mut before = None;
+            self.history.update_value(|h| before = h.revert());
+            if let Some(p) = before {
+                self.plan.set(p);
+            }
+        }
+        self.stroke.set_value(None);
+        self.rect_preview.set(None);
+    }
+
     /// Paints, timing the redraw it causes as an input (when it changes anything).
     fn paint_at(&self, a: usize, b: usize, brush: usize) {
         compute::mark_input();
