@@ -513,7 +513,7 @@ await test('two fingers pinch-zoom the tray without painting; a tap then paints 
   await open(page);
   const before = await plan(page);
   await W(page).tray.scrollIntoViewIfNeeded();
-  const transform = await page.evaluate(() => {
+  const transform = await page.evaluate(async () => {
     const c = document.querySelector('[data-testid="tray"]');
     const r = c.getBoundingClientRect();
     const send = (type, id, x, y) => c.dispatchEvent(new PointerEvent(type, { pointerId: id, pointerType: 'touch', isPrimary: id === 1, clientX: x, clientY: y, bubbles: true }));
@@ -524,6 +524,7 @@ await test('two fingers pinch-zoom the tray without painting; a tap then paints 
     send('pointermove', 12, cx + 60, cy);
     send('pointerup', 11, cx - 60, cy);
     send('pointerup', 12, cx + 60, cy);
+    await new Promise((done) => setTimeout(done, 100)); // the page restyles after the events
     return c.style.transform;
   });
   assert(/scale\(3(\.0+)?\)/.test(transform), 'spreading 40 px to 120 px zooms 3×: ' + transform);
@@ -540,7 +541,7 @@ await test('two fingers pinch-zoom the tray without painting; a tap then paints 
   assert(changed.length === 1 && changed[0][0] === row && changed[0][1] === col, `zoomed tap painted ${JSON.stringify(changed)}`);
   await page.screenshot({ path: join(ART, 'tablet-zoomed.png') });
   await W(page).by('reset-zoom').click();
-  assert(/scale\(1(\.0+)?\)/.test(await W(page).tray.evaluate((c) => c.style.transform)), 'reset');
+  await page.waitForFunction(() => /scale\(1(\.0+)?\)/.test(document.querySelector('[data-testid="tray"]').style.transform), null, { timeout: 5000 });
   await context.close();
 });
 
