@@ -199,7 +199,7 @@ pub fn Board() -> impl IntoView {
                 on:pointerdown=on_down on:pointermove=on_move on:pointerup=on_up on:pointercancel=on_up on:pointerleave=move |_| wb.hover.set(None)></canvas>
             </div>
             <button id="reset-zoom" data-testid="reset-zoom" class="small" class:hidden=move || zoom.get() == Zoom::NONE on:click=move |_| zoom.set(Zoom::NONE)>"Reset zoom"</button>
-            <p class="hint phone-only">"Phone view: the tray, the maps and the outcome come first, the settings below. A finger paints; pinch to zoom the page."</p>
+            <p class="hint phone-only">"Phone view: the tray, the maps and the outcome come first, the settings below. One finger paints; two fingers zoom and pan the tray."</p>
             <p class="hint" id="empty-hint" data-testid="empty-hint" class:hidden=move || wb.plan.with(|p| p.food.iter().any(|&f| f > 0))>
                 "An empty tray: pick a food on the left (or press 1–9) and paint it here with the mouse, a finger or the keyboard; then pick a target band and paint it over the food."
             </p>
