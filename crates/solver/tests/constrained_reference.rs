@@ -6,10 +6,8 @@
 
 mod common;
 
-use clarabel::solver::{
-    DefaultSettingsBuilder, DefaultSolver, IPSolver, NonnegativeConeT, SolverStatus,
-};
-use common::dense_csc;
+use clarabel::solver::SolverStatus;
+use common::{Rows, band_fit_hessian, dense_csc};
 use proptest::prelude::*;
 use traycast_solver::{
     CERTIFY_TOL, Goal, MARGIN_TIME_PRICE, Outcome, Rates, Refusal, Spec, Task, certify, solve_task,
@@ -37,21 +35,10 @@ fn clarabel(rates: &Rates, task: &Task) -> Oracle {
     let ns = usize::from(margin);
     let nt = if fit.is_some() { m } else { 0 };
     let nv = n + ns + nt;
-    let p = dense_csc(nv, nv, true, |i, j| {
-        let Some(s) = fit else { return 0.0 };
-        let (ti, tj) = (i >= n, j >= n);
-        2.0 * match (ti, tj) {
-            (false, false) => {
-                (0..m)
-                    .map(|c| s.weights[c] * a[(c, i)] * a[(c, j)])
-                    .sum::<f64>()
-                    + if i == j { s.ridge } else { 0.0 }
-            }
-            (false, true) => -s.weights[j - n] * a[(j - n, i)],
-            (true, true) if i == j => s.weights[i - n],
-            _ => 0.0,
-        }
-    });
+    let p = match fit {
+        Some(s) => band_fit_hessian(a, s),
+        None => dense_csc(nv, nv, true, |_, _| 0.0),
+    };
     let mut q = vec![0.0; nv];
     match &task.goal {
         Goal::Shortest => q[..n].iter_mut().for_each(|v| *v = 1.0),
@@ -61,82 +48,40 @@ fn clarabel(rates: &Rates, task: &Task) -> Oracle {
         }
         Goal::Fit(s) => q[..n].iter_mut().for_each(|v| *v = s.time_penalty),
     }
-    let mut g_rows: Vec<Vec<(usize, f64)>> = vec![];
-    let mut h = vec![];
-    for j in 0..n {
-        g_rows.push(vec![(j, -1.0)]);
-        h.push(0.0);
-        if task.upper[j].is_finite() {
-            g_rows.push(vec![(j, 1.0)]);
-            h.push(task.upper[j]);
-        }
-    }
-    if let Some(t) = task.budget {
-        g_rows.push((0..n).map(|j| (j, 1.0)).collect());
-        h.push(t);
-    }
+    let mut rows = Rows::default();
+    rows.dwell(&task.upper, task.budget);
     for i in 0..m {
         let row: Vec<(usize, f64)> = (0..n).map(|j| (j, a[(i, j)])).collect();
-        if task.floor[i].is_finite() {
-            let mut g: Vec<(usize, f64)> = row.iter().map(|&(j, v)| (j, -v)).collect();
+        let with_margin = |mut g: Vec<(usize, f64)>| {
             if margin {
                 g.push((n, 1.0));
             }
-            g_rows.push(g);
-            h.push(-task.floor[i]);
+            g
+        };
+        if task.floor[i].is_finite() {
+            rows.push(
+                with_margin(row.iter().map(|&(j, v)| (j, -v)).collect()),
+                -task.floor[i],
+            );
         }
         if task.ceiling[i].is_finite() {
-            let mut g = row.clone();
-            if margin {
-                g.push((n, 1.0));
-            }
-            g_rows.push(g);
-            h.push(task.ceiling[i]);
-        }
-        if let Some(s) = fit {
-            if s.lo[i].is_finite() {
-                g_rows.push(vec![(n + i, -1.0)]);
-                h.push(-s.lo[i]);
-            }
-            if s.hi[i].is_finite() {
-                g_rows.push(vec![(n + i, 1.0)]);
-                h.push(s.hi[i]);
-            }
+            rows.push(with_margin(row), task.ceiling[i]);
         }
     }
-    let g = dense_csc(g_rows.len(), nv, false, |r, c| {
-        g_rows[r]
-            .iter()
-            .find(|(k, _)| *k == c)
-            .map_or(0.0, |(_, v)| *v)
-    });
-    let cones = [NonnegativeConeT(h.len())];
-    for tol in [1e-10, 1e-8] {
-        let settings = DefaultSettingsBuilder::default()
-            .verbose(false)
-            .max_iter(500)
-            .tol_gap_abs(tol)
-            .tol_gap_rel(tol)
-            .tol_feas(tol)
-            .build()
-            .unwrap();
-        let mut solver = DefaultSolver::new(&p, &q, &g, &h, &cones, settings).unwrap();
-        solver.solve();
-        match solver.solution.status {
-            SolverStatus::Solved => {
-                let v = &solver.solution.x;
-                let value = match &task.goal {
-                    Goal::MaxMargin => v[n],
-                    Goal::Shortest => v[..n].iter().sum(),
-                    Goal::Fit(_) => solver.solution.obj_val,
-                };
-                return Oracle::Optimum(value);
-            }
-            SolverStatus::PrimalInfeasible => return Oracle::Infeasible,
-            _ => {}
-        }
+    if let Some(s) = fit {
+        rows.band(n, &s.lo, &s.hi);
     }
-    Oracle::Unsure
+    let decided =
+        |st: &SolverStatus| matches!(st, SolverStatus::Solved | SolverStatus::PrimalInfeasible);
+    match rows.solve(&p, &q, &[1e-10, 1e-8], decided) {
+        (SolverStatus::Solved, v, obj) => Oracle::Optimum(match &task.goal {
+            Goal::MaxMargin => v[n],
+            Goal::Shortest => v[..n].iter().sum(),
+            Goal::Fit(_) => obj,
+        }),
+        (SolverStatus::PrimalInfeasible, _, _) => Oracle::Infeasible,
+        _ => Oracle::Unsure,
+    }
 }
 
 fn rate() -> impl Strategy<Value = f64> {

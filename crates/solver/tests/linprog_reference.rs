@@ -6,26 +6,11 @@
 //! exactly) and infeasible ones included. Objective values are compared, not x (x need not be
 //! unique); what HiGHS proves infeasible must be refused, naming a constraint.
 
+mod common;
+
+use common::Num;
 use serde::Deserialize;
 use traycast_solver::{CERTIFY_TOL, Goal, Outcome, Rates, Refusal, Task, certify, solve_task};
-
-#[derive(Deserialize)]
-#[serde(untagged)]
-enum Num {
-    Value(f64),
-    Text(String),
-}
-
-impl Num {
-    fn get(&self) -> f64 {
-        match self {
-            Num::Value(v) => *v,
-            Num::Text(t) if t == "inf" => f64::INFINITY,
-            Num::Text(t) if t == "-inf" => f64::NEG_INFINITY,
-            Num::Text(t) => panic!("bad number {t}"),
-        }
-    }
-}
 
 #[derive(Deserialize)]
 struct Case {

@@ -5,26 +5,11 @@
 //! point targets, `lsq_linear(method='bvls')` for bounds, and on [A, −I] for weighted bands.
 //! Objectives are compared, not x (x need not be unique).
 
+mod common;
+
+use common::Num;
 use serde::Deserialize;
 use traycast_solver::{DwellSolver, Rates, Spec, kkt};
-
-#[derive(Deserialize)]
-#[serde(untagged)]
-enum Num {
-    Value(f64),
-    Text(String),
-}
-
-impl Num {
-    fn get(&self) -> f64 {
-        match self {
-            Num::Value(v) => *v,
-            Num::Text(t) if t == "inf" => f64::INFINITY,
-            Num::Text(t) if t == "-inf" => f64::NEG_INFINITY,
-            Num::Text(t) => panic!("bad number {t}"),
-        }
-    }
-}
 
 #[derive(Deserialize)]
 struct Case {

@@ -115,84 +115,19 @@ pub fn clarabel_objective(case: &Case) -> Option<f64> {
     let (m, n) = (case.rates.cells(), case.rates.configs());
     let s = &case.spec;
     let a = case.rates.matrix();
-    let nv = n + m;
-    // P = 2·[[AᵀWA + λI, −AᵀW], [−WA, W]] (upper triangle).
-    let p = dense_csc(nv, nv, true, |i, j| {
-        let v = match (i < n, j < n) {
-            (true, true) => {
-                (0..m)
-                    .map(|c| s.weights[c] * a[(c, i)] * a[(c, j)])
-                    .sum::<f64>()
-                    + if i == j { s.ridge } else { 0.0 }
-            }
-            (true, false) => -s.weights[j - n] * a[(j - n, i)],
-            (false, false) => {
-                if i == j {
-                    s.weights[i - n]
-                } else {
-                    0.0
-                }
-            }
-            (false, true) => 0.0,
-        };
-        2.0 * v
-    });
+    let p = band_fit_hessian(a, s);
     let mut q = vec![s.time_penalty; n];
     q.extend(std::iter::repeat_n(0.0, m));
-    // Constraints G z ≤ h.
-    let mut g_rows: Vec<Vec<(usize, f64)>> = vec![];
-    let mut h = vec![];
-    for j in 0..n {
-        g_rows.push(vec![(j, -1.0)]);
-        h.push(0.0);
-        if s.upper[j].is_finite() {
-            g_rows.push(vec![(j, 1.0)]);
-            h.push(s.upper[j]);
-        }
-    }
-    if let Some(t) = s.budget {
-        g_rows.push((0..n).map(|j| (j, 1.0)).collect());
-        h.push(t);
-    }
-    for i in 0..m {
-        if s.lo[i].is_finite() {
-            g_rows.push(vec![(n + i, -1.0)]);
-            h.push(-s.lo[i]);
-        }
-        if s.hi[i].is_finite() {
-            g_rows.push(vec![(n + i, 1.0)]);
-            h.push(s.hi[i]);
-        }
-    }
-    let g = dense_csc(g_rows.len(), nv, false, |r, c| {
-        g_rows[r]
-            .iter()
-            .find(|(k, _)| *k == c)
-            .map_or(0.0, |(_, v)| *v)
-    });
-    let cones = [NonnegativeConeT(h.len())];
+    let mut rows = Rows::default();
+    rows.dwell(&s.upper, s.budget);
+    rows.band(n, &s.lo, &s.hi);
     // Tight tolerances first; Clarabel's defaults (1e-8) if those hit a numerical error.
-    let mut x_c = None;
-    for tol in [1e-10, 1e-8, 1e-7] {
-        let settings = DefaultSettingsBuilder::default()
-            .verbose(false)
-            .max_iter(500)
-            .tol_gap_abs(tol)
-            .tol_gap_rel(tol)
-            .tol_feas(tol)
-            .build()
-            .unwrap();
-        let mut solver = DefaultSolver::new(&p, &q, &g, &h, &cones, settings).unwrap();
-        solver.solve();
-        if matches!(
-            solver.solution.status,
-            SolverStatus::Solved | SolverStatus::AlmostSolved
-        ) {
-            x_c = Some(solver.solution.x.clone());
-            break;
-        }
+    let solved =
+        |st: &SolverStatus| matches!(st, SolverStatus::Solved | SolverStatus::AlmostSolved);
+    let (status, x_c, _) = rows.solve(&p, &q, &[1e-10, 1e-8, 1e-7], solved);
+    if !solved(&status) {
+        return None;
     }
-    let x_c = x_c?;
     let mut x: Vec<f64> = x_c[..n]
         .iter()
         .zip(&s.upper)
@@ -205,4 +140,121 @@ pub fn clarabel_objective(case: &Case) -> Option<f64> {
         }
     }
     Some(objective(s, &case.rates.apply(&x), &x))
+}
+
+/// A number in a fixture file: JSON has no infinities, so the fixture scripts write them as text.
+#[derive(serde::Deserialize)]
+#[serde(untagged)]
+pub enum Num {
+    /// A finite number.
+    Value(f64),
+    /// "inf" or "-inf".
+    Text(String),
+}
+
+impl Num {
+    /// The number.
+    pub fn get(&self) -> f64 {
+        match self {
+            Num::Value(v) => *v,
+            Num::Text(t) if t == "inf" => f64::INFINITY,
+            Num::Text(t) if t == "-inf" => f64::NEG_INFINITY,
+            Num::Text(t) => panic!("bad number {t}"),
+        }
+    }
+}
+
+/// Inequality rows G·z ≤ h for Clarabel, each row a sparse list of (column, value).
+#[derive(Default)]
+pub struct Rows {
+    g: Vec<Vec<(usize, f64)>>,
+    h: Vec<f64>,
+}
+
+impl Rows {
+    /// One row g·z ≤ h.
+    pub fn push(&mut self, g: Vec<(usize, f64)>, h: f64) {
+        self.g.push(g);
+        self.h.push(h);
+    }
+
+    /// 0 ≤ xⱼ ≤ uⱼ and Σx ≤ T on the first `upper.len()` variables.
+    pub fn dwell(&mut self, upper: &[f64], budget: Option<f64>) {
+        for (j, u) in upper.iter().enumerate() {
+            self.push(vec![(j, -1.0)], 0.0);
+            if u.is_finite() {
+                self.push(vec![(j, 1.0)], *u);
+            }
+        }
+        if let Some(t) = budget {
+            self.push((0..upper.len()).map(|j| (j, 1.0)).collect(), t);
+        }
+    }
+
+    /// loᵢ ≤ tᵢ ≤ hiᵢ for band points tᵢ at columns `offset + i` (infinite edges left out).
+    pub fn band(&mut self, offset: usize, lo: &[f64], hi: &[f64]) {
+        for (i, (l, u)) in lo.iter().zip(hi).enumerate() {
+            if l.is_finite() {
+                self.push(vec![(offset + i, -1.0)], -l);
+            }
+            if u.is_finite() {
+                self.push(vec![(offset + i, 1.0)], *u);
+            }
+        }
+    }
+
+    /// Clarabel on min ½zᵀPz + qᵀz subject to these rows, at each tolerance in turn until `done`
+    /// accepts the status: the last status, z and objective.
+    pub fn solve(
+        &self,
+        p: &CscMatrix<f64>,
+        q: &[f64],
+        tolerances: &[f64],
+        done: impl Fn(&SolverStatus) -> bool,
+    ) -> (SolverStatus, Vec<f64>, f64) {
+        let g = dense_csc(self.g.len(), q.len(), false, |r, c| {
+            self.g[r]
+                .iter()
+                .find(|(k, _)| *k == c)
+                .map_or(0.0, |(_, v)| *v)
+        });
+        let cones = [NonnegativeConeT(self.h.len())];
+        let mut last = (SolverStatus::Unsolved, Vec::new(), f64::NAN);
+        for &tol in tolerances {
+            let settings = DefaultSettingsBuilder::default()
+                .verbose(false)
+                .max_iter(500)
+                .tol_gap_abs(tol)
+                .tol_gap_rel(tol)
+                .tol_feas(tol)
+                .build()
+                .unwrap();
+            let mut solver = DefaultSolver::new(p, q, &g, &self.h, &cones, settings).unwrap();
+            solver.solve();
+            let sol = &solver.solution;
+            last = (sol.status, sol.x.clone(), sol.obj_val);
+            if done(&sol.status) {
+                break;
+            }
+        }
+        last
+    }
+}
+
+/// The band fit's quadratic term in (x, t), P = 2·[[AᵀWA + λI, −AᵀW], [−WA, W]] (upper triangle).
+pub fn band_fit_hessian(a: &nalgebra::DMatrix<f64>, s: &Spec) -> CscMatrix<f64> {
+    let (m, n) = a.shape();
+    dense_csc(n + m, n + m, true, |i, j| {
+        2.0 * match (i < n, j < n) {
+            (true, true) => {
+                (0..m)
+                    .map(|c| s.weights[c] * a[(c, i)] * a[(c, j)])
+                    .sum::<f64>()
+                    + if i == j { s.ridge } else { 0.0 }
+            }
+            (true, false) => -s.weights[j - n] * a[(j - n, i)],
+            (false, false) if i == j => s.weights[i - n],
+            _ => 0.0,
+        }
+    })
 }
