@@ -10,8 +10,8 @@ use clarabel::solver::SolverStatus;
 use common::{Rows, band_fit_hessian, dense_csc};
 use proptest::prelude::*;
 use traycast_solver::{
-    CERTIFY_TOL, Goal, MARGIN_TIME_PRICE, Outcome, Rates, Refusal, Spec, Task, certify, solve_task,
-    solve_task_from,
+    CERTIFY_TOL, Goal, MARGIN_TIME_PRICE, Outcome, Planned, Rates, Refusal, Spec, Task, certify,
+    solve_task, solve_task_from,
 };
 
 /// What Clarabel says about a task.
@@ -142,6 +142,30 @@ fn task(goal: u8) -> impl Strategy<Value = (Rates, Task)> {
 }
 
 /// Our answer against Clarabel's: same optimum (to Clarabel's 1e-8-ish accuracy, scaled), a
+/// A warm start's answer is the cold start's: both certified to the same optimum, or both refused
+/// as infeasible.
+fn same_answer(
+    cold: Result<Planned, Refusal>,
+    warm: Result<Planned, Refusal>,
+) -> Result<(), TestCaseError> {
+    match (cold, warm) {
+        (Ok(c), Ok(w)) => {
+            prop_assert_eq!(w.outcome, Outcome::Optimal);
+            let scale = 1.0 + c.objective.abs();
+            // Both are certified to CERTIFY_TOL; their objectives agree to the same order.
+            prop_assert!(
+                (c.objective - w.objective).abs() <= 2e-6 * scale,
+                "cold {} warm {}",
+                c.objective,
+                w.objective
+            );
+        }
+        (Err(Refusal::Infeasible(_)), Err(Refusal::Infeasible(_))) => {}
+        (c, w) => prop_assert!(false, "cold {c:?} warm {w:?}"),
+    }
+    Ok(())
+}
+
 /// certificate that holds when recomputed, and a refusal exactly when Clarabel proves infeasibility.
 fn agree(rates: &Rates, task: &Task) -> Result<(), TestCaseError> {
     let ours = solve_task(rates, task);
@@ -249,17 +273,7 @@ proptest! {
         }
         let cold = solve_task(&rates, &after);
         let warm = solve_task_from(&rates, &after, Some(&before));
-        match (cold, warm) {
-            (Ok(c), Ok(w)) => {
-                prop_assert_eq!(w.outcome, Outcome::Optimal);
-                let scale = 1.0 + c.objective.abs();
-                // Both are certified to CERTIFY_TOL; their objectives agree to the same order.
-                prop_assert!((c.objective - w.objective).abs() <= 2e-6 * scale,
-                    "cold {} warm {}", c.objective, w.objective);
-            }
-            (Err(Refusal::Infeasible(_)), Err(Refusal::Infeasible(_))) => {}
-            (c, w) => prop_assert!(false, "cold {c:?} warm {w:?}"),
-        }
+        same_answer(cold, warm)?;
     }
 
     /// Started from an answer on other rates (a stroke that moved food changes the maps), a solve
@@ -277,15 +291,6 @@ proptest! {
         let changed = traycast_solver::Rates::from_matrix(a).unwrap();
         let cold = solve_task(&changed, &task);
         let warm = solve_task_from(&changed, &task, Some(&before));
-        match (cold, warm) {
-            (Ok(c), Ok(w)) => {
-                prop_assert_eq!(w.outcome, Outcome::Optimal);
-                let scale = 1.0 + c.objective.abs();
-                prop_assert!((c.objective - w.objective).abs() <= 2e-6 * scale,
-                    "cold {} warm {}", c.objective, w.objective);
-            }
-            (Err(Refusal::Infeasible(_)), Err(Refusal::Infeasible(_))) => {}
-            (c, w) => prop_assert!(false, "cold {c:?} warm {w:?}"),
-        }
+        same_answer(cold, warm)?;
     }
 }
