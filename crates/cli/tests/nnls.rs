@@ -15,8 +15,12 @@ fn fmt(v: &serde_json::Value) -> String {
     }
 }
 
-/// Writes a fixture case's rate matrix as A.csv in `dir`.
-fn write_rates(dir: &std::path::Path, case: &serde_json::Value, m: usize, n: usize) -> String {
+/// Writes a fixture case's rate matrix (its `m` × `n` rates) as A.csv in `dir`; returns the path.
+fn write_rates(dir: &std::path::Path, case: &serde_json::Value) -> String {
+    let (m, n) = (
+        case["m"].as_u64().unwrap() as usize,
+        case["n"].as_u64().unwrap() as usize,
+    );
     let a: Vec<f64> = case["rates_row_major"]
         .as_array()
         .unwrap()
@@ -53,12 +57,9 @@ fn agrees_with_scipy_fixtures() {
     let fixture: serde_json::Value = serde_json::from_str(text).unwrap();
     let dir = scratch("scipy");
     for case in fixture["cases"].as_array().unwrap() {
-        let (m, n) = (
-            case["m"].as_u64().unwrap() as usize,
-            case["n"].as_u64().unwrap() as usize,
-        );
         let write = |name: &str, key: &str| write_column(&dir, name, case, key);
-        let ra = write_rates(&dir, case, m, n);
+        let ra = write_rates(&dir, case);
+        let n = case["n"].as_u64().unwrap() as usize;
         let lo = write("lo.csv", "lo");
         let hi = write("hi.csv", "hi");
         let w = write("w.csv", "weights");
@@ -106,12 +107,8 @@ fn objectives_agree_with_scipy_linprog_highs() {
     let fixture: serde_json::Value = serde_json::from_str(text).unwrap();
     let dir = scratch("linprog");
     for case in fixture["cases"].as_array().unwrap() {
-        let (m, n) = (
-            case["m"].as_u64().unwrap() as usize,
-            case["n"].as_u64().unwrap() as usize,
-        );
         let write = |name: &str, key: &str| write_column(&dir, name, case, key);
-        let ra = write_rates(&dir, case, m, n);
+        let ra = write_rates(&dir, case);
         let (lo, hi, u) = (
             write("lo.csv", "floor"),
             write("hi.csv", "ceiling"),

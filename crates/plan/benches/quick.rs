@@ -13,16 +13,21 @@ use traycast_plan::demos::benchmark_tray;
 use traycast_plan::evaluate::{Evaluator, Options, Prepared};
 use traycast_solver::{DwellSolver, Rates, Spec};
 
-fn bench(c: &mut Criterion) {
-    let base = benchmark_tray();
-    let strokes: Vec<_> = (0..64)
+/// 64 strokes on `base`: one cell's target switched between the first two zones each.
+fn strokes(base: &traycast_plan::model::Plan) -> Vec<traycast_plan::model::Plan> {
+    (0..64)
         .map(|k| {
             let mut q = base.clone();
             let i = (k * 37) % q.food.len();
             q.zone[i] = 1 + (q.zone[i] % 2);
             q
         })
-        .collect();
+        .collect()
+}
+
+fn bench(c: &mut Criterion) {
+    let base = benchmark_tray();
+    let strokes = strokes(&base);
     let mut ev = Evaluator::new();
     ev.evaluate(&base, Options::default()).unwrap();
     let mut k = 0;
@@ -79,14 +84,7 @@ fn constrained(c: &mut Criterion) {
         let mut base = benchmark_tray();
         base.planning.objective = objective;
         base.oven.budget_s = Some(600.0);
-        let strokes: Vec<_> = (0..64)
-            .map(|k| {
-                let mut q = base.clone();
-                let i = (k * 37) % q.food.len();
-                q.zone[i] = 1 + (q.zone[i] % 2);
-                q
-            })
-            .collect();
+        let strokes = strokes(&base);
         let mut ev = Evaluator::new();
         ev.quick(&base).unwrap();
         let mut k = 0;
