@@ -31,6 +31,7 @@ struct Pin {
 }
 
 /// One column of the comparison.
+#[derive(Clone, Debug, PartialEq)]
 struct Side {
     short: &'static str,
     title: String,
@@ -149,31 +150,34 @@ pub fn Compare() -> impl IntoView {
         NodeRef::<html::Canvas>::new(),
         NodeRef::<html::Canvas>::new(),
     );
-    let current = move || {
+    // The two sides, derived once per change for the maps, the captions and the table.
+    let sides = Memo::new(move |_| {
         let (m, u) = (mode.get(), wb.unit.get());
         wb.with_current(|e| {
             wb.plan
                 .with_untracked(|p| pin.with(|pin| sides(m, p, e, pin.as_ref(), u)))
         })
         .flatten()
-    };
+    });
     Effect::new(move |_| {
-        let Some((a, b)) = current() else { return };
         let u = wb.unit.get();
-        let scale = Scale::spanning(&[&a.temps, &b.temps]);
-        for (side, r) in [(&a, a_ref), (&b, b_ref)] {
-            if let Some(c) = r.get() {
-                draw::heatmap(
-                    &c,
-                    &side.plan,
-                    &side.temps,
-                    draw::cell_px(&side.plan, MAP_PX),
-                    scale,
-                    u,
-                    &side.title,
-                );
+        sides.with(|s| {
+            let Some((a, b)) = s else { return };
+            let scale = Scale::spanning(&[&a.temps, &b.temps]);
+            for (side, r) in [(a, a_ref), (b, b_ref)] {
+                if let Some(c) = r.get() {
+                    draw::heatmap(
+                        &c,
+                        &side.plan,
+                        &side.temps,
+                        draw::cell_px(&side.plan, MAP_PX),
+                        scale,
+                        u,
+                        &side.title,
+                    );
+                }
             }
-        }
+        });
     });
     let pin_now = move |_| {
         let label = wb.plan.with_untracked(label_of);
@@ -191,7 +195,7 @@ pub fn Compare() -> impl IntoView {
         }
     };
     let table = move || {
-        current().map(|(a, b)| {
+        sides.with(|s| s.as_ref().map(|(a, b)| {
             let rows = a.rows.iter().zip(&b.rows).map(|((name, va, ua), (_, vb, ub))| view! {
                 <tr><th scope="row">{name.clone()}</th><td>{va.clone()}<div class="rule">{cv(ua)}</div></td><td>{vb.clone()}<div class="rule">{cv(ub)}</div></td></tr>
             }).collect_view();
@@ -205,7 +209,7 @@ pub fn Compare() -> impl IntoView {
                     </tbody>
                 </table>
             }
-        })
+        }))
     };
     let on_mode = move |ev: leptos::ev::Event| {
         mode.set(if event_target_value(&ev) == "pinned" {
@@ -226,8 +230,8 @@ pub fn Compare() -> impl IntoView {
             </div>
             <p class="hint" class:hidden=move || mode.get() != Mode::Pinned || pin.with(Option::is_some)>"Nothing pinned yet: pin an outcome, change the plan, and the two show side by side."</p>
             <div class="maps">
-                <figure><figcaption>{move || current().map(|(a, _)| a.title)}</figcaption><canvas id="compare-a" node_ref=a_ref></canvas></figure>
-                <figure><figcaption>{move || current().map(|(_, b)| b.title)}</figcaption><canvas id="compare-b" node_ref=b_ref></canvas></figure>
+                <figure><figcaption>{move || sides.with(|s| s.as_ref().map(|(a, _)| a.title.clone()))}</figcaption><canvas id="compare-a" node_ref=a_ref></canvas></figure>
+                <figure><figcaption>{move || sides.with(|s| s.as_ref().map(|(_, b)| b.title.clone()))}</figcaption><canvas id="compare-b" node_ref=b_ref></canvas></figure>
             </div>
             {table}
             <p class="hint">"CV: coefficient of variation of the rise σ/(T̄ − T₀); spread: warmest − coldest cell; in band: share of targeted cells. Both maps share one temperature scale."</p>

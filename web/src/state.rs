@@ -71,6 +71,9 @@ pub struct Workbench {
     pub sim_depth: RwSignal<f64>,
     /// The share link's length, characters.
     pub link_len: RwSignal<usize>,
+    /// What the simulated map shows of each cell (the chosen point or depth), for the current
+    /// revision's evaluation; None until it arrives.
+    pub simulated: Memo<Option<Vec<f64>>>,
     /// The temperature scale the linear and simulated maps share: the locked one, else one
     /// spanning both maps of the current revision.
     pub scale: Memo<Scale>,
@@ -96,23 +99,25 @@ impl Workbench {
         let eval = RwSignal::new(None::<Tagged>);
         let (sim_view, sim_depth) = (RwSignal::new(SimView::Coldest), RwSignal::new(10.0));
         let scale_lock = RwSignal::new(None);
+        let simulated = Memo::new(move |_| {
+            let (view, depth) = (sim_view.get(), sim_depth.get());
+            eval.with(|e| match e {
+                Some((r, Ok(e))) if *r == rev.get() => {
+                    Some(plan.with(|p| view.temps(&e.course, depth, &p.food)))
+                }
+                _ => None,
+            })
+        });
         let scale = Memo::new(move |_| {
             if let Some(s) = scale_lock.get() {
                 return s;
             }
             let now = rev.get();
-            let (view, depth) = (sim_view.get(), sim_depth.get());
             let linear = quick.with(|q| match q {
                 Some((r, q)) if *r == now => q.linear.clone(),
                 _ => Vec::new(),
             });
-            let simulated = eval.with(|e| match e {
-                Some((r, Ok(e))) if *r == now => {
-                    plan.with(|p| view.temps(&e.course, depth, &p.food))
-                }
-                _ => Vec::new(),
-            });
-            Scale::spanning(&[&linear, &simulated])
+            simulated.with(|sim| Scale::spanning(&[&linear, sim.as_deref().unwrap_or_default()]))
         });
         let settings = Memo::new(move |_| {
             plan.with(|p| Plan {
@@ -144,6 +149,7 @@ impl Workbench {
             sim_view,
             sim_depth,
             link_len: RwSignal::new(0),
+            simulated,
             scale,
             scale_lock,
             canvases: Canvases {

@@ -76,25 +76,34 @@ pub fn draw_views(wb: Workbench) {
             measure_input();
         });
     });
+    // The simulated map and the chart: when the current revision's evaluation arrives (or the
+    // unit, the point shown or the shared scale changes).
     Effect::new(move |_| {
         let u = wb.unit.get();
-        let (view, depth) = (wb.sim_view.get(), wb.sim_depth.get());
-        wb.eval.with(|e| {
-            let Some((r, Ok(e))) = e else { return };
-            if *r != wb.rev.get_untracked() {
-                return;
-            }
+        let scale = wb.scale.get();
+        wb.simulated.with(|temps| {
+            let Some(temps) = temps else { return };
+            let (view, depth) = (wb.sim_view.get_untracked(), wb.sim_depth.get_untracked());
             let p = wb.plan.get_untracked();
             if let Some(canvas) = c.simulated.get() {
-                let temps = view.temps(&e.course, depth, &p.food);
                 let title = format!("simulated {} after standing", view.caption(depth));
-                let hp = draw::cell_px(&p, MAP_PX);
-                draw::heatmap(&canvas, &p, &temps, hp, wb.scale.get(), u, &title);
+                draw::heatmap(
+                    &canvas,
+                    &p,
+                    temps,
+                    draw::cell_px(&p, MAP_PX),
+                    scale,
+                    u,
+                    &title,
+                );
             }
-            if let Some(canvas) = c.course.get() {
-                draw::time_course(&canvas, &p, e, u);
-            }
+            // `simulated` is Some only while the evaluation is the current revision's.
+            wb.eval.with_untracked(|e| {
+                if let (Some((_, Ok(e))), Some(canvas)) = (e, c.course.get()) {
+                    draw::time_course(&canvas, &p, e, u);
+                }
+            });
+            measure("tc-full-frame", "tc-eval-start");
         });
-        measure("tc-full-frame", "tc-eval-start");
     });
 }
