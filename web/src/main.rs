@@ -28,6 +28,7 @@ mod shortcuts;
 mod simview;
 mod state;
 mod storage;
+mod strokes;
 mod surface;
 mod units;
 mod views;
