@@ -57,10 +57,12 @@ pub fn Outcome() -> impl IntoView {
                     }
                 }).collect_view();
                 let zones = p.zones.iter().zip(&e.zones).map(|(z, s)| {
-                    let diag = s.diagnosis.as_ref().map(ToString::to_string).unwrap_or_default();
+                    // Why it misses reads as a sentence: its own full-width row under the numbers.
+                    let diag = s.diagnosis.as_ref().map(|d| view! { <tr class="why"><td class="diagnosis" colspan="4">{d.to_string()}</td></tr> });
                     view! {
                         <tr><td>{z.name.clone()}</td><td>{format!("{:.0} %", 100.0 * s.coverage_linear)}</td><td>{format!("{:.0} %", 100.0 * s.coverage_simulated)}</td>
-                        <td>{format!("{:.1}", u.diff(s.rms_simulated))}</td><td class="diagnosis">{diag}</td></tr>
+                        <td>{format!("{:.1}", u.diff(s.rms_simulated))}</td></tr>
+                        {diag}
                     }
                 }).collect_view();
                 let budget = p.oven.budget_s.map_or("no budget".to_string(), |b| format!("of {b:.0} s"));
@@ -68,7 +70,7 @@ pub fn Outcome() -> impl IntoView {
                     <p class="total" data-total=format!("{:.3}", e.total_s)>{format!("Heating {:.1} s {budget}, then {:.0} s standing", e.total_s, p.oven.standing_s)}</p>
                     <p class="bounds-from">{e.bounds_from.clone().map(|b| format!("Verdicts are judged on {b}."))}</p>
                     <table class="items"><thead><tr><th>"food item"</th><th>"coldest point"</th><th>"mean"</th><th>"hottest point"</th>{with_spread.then(|| view! { <th>"coldest, 95 % joint"</th><th>"mean, 95 % joint"</th> })}<th>"in band"</th><th>"verdict, point judged, rule"</th><th>"moisture lost"</th></tr></thead><tbody>{items}</tbody></table>
-                    <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", u.diff_symbol())}</th><th>"why it misses"</th></tr></thead><tbody>{zones}</tbody></table>
+                    <table class="zones"><thead><tr><th>"zone"</th><th>"in band, linear"</th><th>"in band, simulated"</th><th>{format!("RMS off ({})", u.diff_symbol())}</th></tr></thead><tbody>{zones}</tbody></table>
                     <p class="baseline">{format!("Without steering (all configurations alike, {:.0} s): {:.0} % of targeted cells in band, RMS {:.1} off — with steering: see the zones above.", e.baseline.seconds, 100.0 * e.baseline.coverage_linear, u.diff(e.baseline.rms_linear))}</p>
                     <ul class="warnings">{e.warnings.iter().map(|w| view! { <li>{w.clone()}</li> }).collect_view()}</ul>
                 }.into_any()
